@@ -1,0 +1,116 @@
+/* SPDX-License-Identifier: MIT
+ *
+ * sf-geom.h — plane geometry of a strip cross-section (internal to sim/).
+ *
+ * Owns: polylines and polygons in the (x, z) section plane (areas and
+ * centroids by the shoelace formula, self-intersection tests, evaluation of
+ * x-monotone strings), and the 1-D height profile a lane carries across the
+ * strip, with the two operations that change loose material on it at the
+ * angle of repose: local relaxation and direct construction of a dump face.
+ *
+ * Conventions: x across the strip, + in the push direction (towards the
+ * void); z up.  A profile is a run of n equal cells; cell i covers
+ * [x0 + i dx, x0 + (i+1) dx] and z[i] is the mean height over the cell, so
+ * the cross-section area of the material above a level L is sum (z[i]-L) dx
+ * exactly.  Slopes are taken between neighbouring cell centres.
+ *
+ * No function here allocates except sf_profile_new / sf_profile_copy; the
+ * caller frees those with sf_profile_free.  No clock, no randomness, no I/O.
+ */
+#pragma once
+
+#include <glib.h>
+#include "sf-scenario.h"
+
+G_BEGIN_DECLS
+
+/* ---- polylines and polygons ------------------------------------------- */
+
+/* Signed area of the closed polygon p[0..n-1] (shoelace), + when the
+ * vertices run counter-clockwise.  n < 3 gives 0. */
+double sf_poly_area (const SfPoint *p, gsize n);
+
+/* Area (signed, as above) and centroid of the closed polygon.  Returns FALSE
+ * (centroid untouched) when the area is zero. */
+gboolean sf_poly_centroid (const SfPoint *p, gsize n, SfPoint *centroid, double *area);
+
+/* TRUE when two non-adjacent segments of the open polyline p[0..n-1] cross or
+ * touch; *seg_a and *seg_b (may be NULL) receive the first offending pair. */
+gboolean sf_polyline_self_intersects (const SfPoint *p, gsize n, gsize *seg_a, gsize *seg_b);
+
+/* The same for the closed polygon (the closing segment n-1 -> 0 included). */
+gboolean sf_polygon_self_intersects (const SfPoint *p, gsize n, gsize *seg_a, gsize *seg_b);
+
+/* z at x on an x-monotone polyline (x strictly increasing), linear between
+ * vertices, held constant beyond either end. */
+double sf_polyline_eval (const SfPoint *p, gsize n, double x);
+
+/* Exact integral of that polyline over [xa, xb] (xa < xb), constant
+ * extension beyond the ends. */
+double sf_polyline_integral (const SfPoint *p, gsize n, double xa, double xb);
+
+/* ---- profiles ---------------------------------------------------------- */
+
+typedef struct {
+  double x0_m;   /* left edge of cell 0 */
+  double dx_m;   /* cell width */
+  guint n;       /* number of cells */
+  double *z;     /* n mean heights, owned */
+} SfProfile;
+
+SfProfile *sf_profile_new (double x0_m, double dx_m, guint n);
+SfProfile *sf_profile_copy (const SfProfile *p);
+void sf_profile_free (SfProfile *p);
+G_DEFINE_AUTOPTR_CLEANUP_FUNC (SfProfile, sf_profile_free)
+
+/* Centre of cell i. */
+static inline double
+sf_profile_x (const SfProfile *p, guint i)
+{
+  return p->x0_m + (i + 0.5) * p->dx_m;
+}
+
+/* Index of the cell holding x, clamped to [0, n-1]. */
+guint sf_profile_cell (const SfProfile *p, double x);
+
+/* Sets every z[i] to the mean of the x-monotone polyline over cell i. */
+void sf_profile_sample_polyline (SfProfile *prof, const SfPoint *p, gsize n);
+
+/* Area (m2 of section) of the region where upper > lower over cells
+ * [i0, i1) of two height arrays with cell width dx: sum max(0, u-l) dx.
+ * When cx / cz are not NULL they receive the centroid of that region
+ * (cells taken as rectangles); both are left untouched if the area is 0. */
+double sf_heights_area_between (const double *upper, const double *lower, guint i0, guint i1,
+                                double x0_m, double dx_m, double *cx, double *cz);
+
+/* ---- loose material at the angle of repose ---------------------------- */
+
+/* Relaxes loose material so that no slope between neighbouring cells exceeds
+ * tan_repose (within tol_m of height difference), moving material downhill
+ * only, never below base[] (the non-erodible ground: in-situ rock, coal; NULL
+ * means everything is loose).  Only the window [i0, i1) that was disturbed is
+ * examined at first; the window grows as material moves.  The total of z is
+ * conserved to rounding.  Returns the number of cell pairs adjusted.
+ * *touched_lo / *touched_hi (may be NULL) receive the changed range
+ * [lo, hi). */
+guint sf_heights_relax (double *z, const double *base, guint n, double dx_m, double tan_repose,
+                        guint i0, guint i1, double tol_m, guint *touched_lo, guint *touched_hi);
+
+/* Deposits `area_m2` of section area at a dump front: the material leaves the
+ * blade at cell i_crest at level z_top_m and runs down ahead of it, so the new
+ * surface beyond the crest is max(z_old, min(z_top, z_top - (x - x_f) tan))
+ * for a front position x_f chosen so that exactly area_m2 is added (the pile
+ * is built at the angle of repose directly, no iteration over the whole
+ * profile).  Cells i_crest+1 .. n-1 may change; cell i_crest is raised to
+ * z_top first if it is lower.  Returns the area that did not fit before the
+ * end of the profile (0 when all fitted).  *i_front receives the last cell
+ * changed. */
+double sf_heights_deposit_face (double *z, guint n, double x0_m, double dx_m, guint i_crest,
+                                double z_top_m, double tan_repose, double area_m2, guint *i_front);
+
+/* Largest |z[i+1]-z[i]| / dx over cells where the higher cell holds loose
+ * material (z > base + tol; base may be NULL). */
+double sf_heights_max_loose_slope (const double *z, const double *base, guint n, double dx_m,
+                                   double tol_m);
+
+G_END_DECLS

@@ -1,0 +1,93 @@
+/* SPDX-License-Identifier: MIT */
+#include "sf-util.h"
+
+#include <errno.h>
+#include <fcntl.h>
+#include <unistd.h>
+#include <glib/gstdio.h>
+
+G_DEFINE_QUARK (sf-scenario-error-quark, sf_scenario_error)
+G_DEFINE_QUARK (sf-model-error-quark, sf_model_error)
+
+gboolean
+sf_write_file_atomic (const char *path, const char *data, gssize len, GError **error)
+{
+  return g_file_set_contents_full (path, data, len,
+                                   G_FILE_SET_CONTENTS_CONSISTENT | G_FILE_SET_CONTENTS_DURABLE,
+                                   0644, error);
+}
+
+SfAtomicFile *
+sf_atomic_file_open (const char *path, GError **error)
+{
+  g_autofree char *tmpl = g_strdup_printf ("%s.XXXXXX", path);
+  int fd = g_mkstemp_full (tmpl, O_WRONLY | O_CREAT | O_EXCL, 0644);
+  if (fd < 0)
+    {
+      int e = errno;
+      g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (e),
+                   "cannot create a temporary file beside %s: %s", path, g_strerror (e));
+      return NULL;
+    }
+  SfAtomicFile *af = g_new0 (SfAtomicFile, 1);
+  af->fp = fdopen (fd, "w");
+  if (!af->fp)
+    {
+      int e = errno;
+      close (fd);
+      g_unlink (tmpl);
+      g_free (af);
+      g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (e), "cannot open %s: %s", path,
+                   g_strerror (e));
+      return NULL;
+    }
+  af->tmp_path = g_steal_pointer (&tmpl);
+  af->final_path = g_strdup (path);
+  return af;
+}
+
+gboolean
+sf_atomic_file_commit (SfAtomicFile *af, GError **error)
+{
+  gboolean ok = TRUE;
+  int e = 0;
+  if (fflush (af->fp) != 0 || ferror (af->fp) || fsync (fileno (af->fp)) != 0)
+    {
+      ok = FALSE;
+      e = errno;
+    }
+  if (fclose (af->fp) != 0 && ok)
+    {
+      ok = FALSE;
+      e = errno;
+    }
+  af->fp = NULL;
+  if (ok && g_rename (af->tmp_path, af->final_path) != 0)
+    {
+      ok = FALSE;
+      e = errno;
+    }
+  if (!ok)
+    {
+      g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (e), "cannot write %s: %s",
+                   af->final_path, g_strerror (e ? e : EIO));
+      g_unlink (af->tmp_path);
+    }
+  g_free (af->tmp_path);
+  g_free (af->final_path);
+  g_free (af);
+  return ok;
+}
+
+void
+sf_atomic_file_abort (SfAtomicFile *af)
+{
+  if (!af)
+    return;
+  if (af->fp)
+    fclose (af->fp);
+  g_unlink (af->tmp_path);
+  g_free (af->tmp_path);
+  g_free (af->final_path);
+  g_free (af);
+}
