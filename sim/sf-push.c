@@ -1,1 +1,376 @@
-/* SPDX-License-Identifier: MIT */
+/* SPDX-License-Identifier: MIT
+ *
+ * sf-push.c — push physics (equations and sources: docs/model.md §3-§6).
+ *
+ * Invariants kept by sf_push_cycle():
+ *  - every push conserves loose volume: removed = deposited + dropped +
+ *    spilled, so the sum of a lane's heights never changes;
+ *  - nothing moves below the lane's non-erodible base;
+ *  - after a push, no loose slope the push touched is steeper than the angle
+ *    of repose (the cut faces, drops and spill are relaxed locally and the
+ *    dump face is built at the angle of repose).
+ */
+#include "sf-push.h"
+
+#include <math.h>
+#include <string.h>
+#include "sf-geom.h"
+#include "sf-util.h"
+
+/* Blade cutting angle used for the lift of the soil prism along the blade
+ * face: 55 degrees (from memory; Alekseeva, Artem'ev & Zelenin, Machines for
+ * Earthmoving Work, 1992). */
+#define SF_BLADE_CUTTING_ANGLE_DEG 55.0
+/* A loaded dozer lugs down to about half the top speed of its push gear before
+ * the operator sheds load: the engine power limit is taken at that speed
+ * (common practice, no source). */
+#define SF_WORK_SPEED_SHARE 0.5
+/* Extra resistance on the return over loose blasted ground, fraction of the
+ * weight (crawler ratings are net of track rolling resistance; this is the
+ * soft-ground allowance; common practice, no source). */
+#define SF_RETURN_RESISTANCE 0.03
+/* A downgrade ahead steeper than this is a dump edge, not a push path
+ * (common practice, no source). */
+#define SF_MAX_DRIVE_GRADE 0.45
+/* Half-width of the window over which the grade under the machine is taken:
+ * about half a large dozer's track length on the ground (from memory). */
+#define SF_GRADE_HALF_WINDOW_M 2.0
+
+void
+sf_push_machine_init (SfPushMachine *pm, const SfDozerClass *c, const SfMaterial *m,
+                      const SfDesign *d)
+{
+  memset (pm, 0, sizeof *pm);
+  pm->mass_kg = c->operating_mass_t * 1000.0;
+  pm->weight_n = pm->mass_kg * SF_G_MS2;
+  pm->drawbar_power_w = c->net_power_kw * 1000.0 * c->drivetrain_efficiency;
+  pm->mu_traction = c->traction_coefficient;
+  pm->blade_lcm = sf_dozer_class_rated_lcm (c) * m->blade_fill_factor;
+  pm->blade_width_m = c->blade_width_m;
+  pm->carry_share = c->blade_type == SF_BLADE_CARRY ? c->carry_share : 0.0;
+  pm->rho_loose_kg_m3 = m->bank_density_t_per_bcm * 1000.0 / (1.0 + m->swell);
+  pm->mu_soil = m->soil_friction;
+  pm->mu_steel = m->steel_friction;
+  double ca = cos (sf_deg2rad (SF_BLADE_CUTTING_ANGLE_DEG));
+  pm->lift_factor = ca * ca;
+  pm->k_cut_pa = m->cutting_resistance_kpa * 1000.0;
+  guint pg = CLAMP (c->push_gear, 1u, c->n_fwd) - 1;
+  guint rg = CLAMP (c->return_gear, 1u, c->n_rev) - 1;
+  pm->v_push_ms = c->fwd_kmh[pg] * SF_KMH_TO_MS;
+  pm->v_work_ms = SF_WORK_SPEED_SHARE * pm->v_push_ms;
+  pm->v_return_ms = c->rev_kmh[rg] * SF_KMH_TO_MS;
+  pm->return_resistance = SF_RETURN_RESISTANCE;
+  pm->fixed_time_s = c->fixed_time_min * 60.0;
+  double spill = d->spill_per_m;
+  if (d->slot_dozing)
+    spill *= d->slot_spill_factor;
+  if (d->side_by_side)
+    spill *= d->side_by_side_spill_factor;
+  pm->spill_per_m = spill;
+  pm->load_distance_m = d->load_distance_m;
+  pm->max_drive_grade = SF_MAX_DRIVE_GRADE;
+}
+
+/* Largest G with A G <= B (G >= 0). */
+static double
+largest_load (double A, double B)
+{
+  if (A > 0)
+    return B > 0 ? B / A : 0.0;
+  return B >= 0 ? INFINITY : 0.0;
+}
+
+double
+sf_push_max_load_kg (const SfPushMachine *pm, double grade, double cut_depth_m,
+                     SfLoadLimit *limit)
+{
+  const double t = atan (grade);
+  const double ct = cos (t), st = sin (t);
+  const double c = pm->carry_share;
+  const double Wm = pm->weight_n;
+  const double f_cut = pm->k_cut_pa * pm->blade_width_m * MAX (cut_depth_m, 0.0);
+  /* resistance per newton of load weight */
+  const double per_g = (1.0 - c) * pm->mu_soil * ct + pm->mu_steel * pm->lift_factor + st;
+  /* traction: mu_t (W + c G) cos t >= G per_g + W sin t + F_cut */
+  double g_trac = largest_load (per_g - c * pm->mu_traction * ct,
+                                pm->mu_traction * Wm * ct - Wm * st - f_cut);
+  /* power at the lowest working speed */
+  double g_pow = largest_load (per_g, pm->drawbar_power_w / pm->v_work_ms - Wm * st - f_cut);
+  double g_max = MIN (g_trac, g_pow);
+  if (limit)
+    *limit = g_trac <= g_pow ? SF_LIMIT_TRACTION : SF_LIMIT_POWER;
+  return g_max / SF_G_MS2;
+}
+
+double
+sf_push_max_load_lcm (const SfPushMachine *pm, double grade, double cut_depth_m,
+                      SfLoadLimit *limit)
+{
+  SfLoadLimit lim;
+  double v = sf_push_max_load_kg (pm, grade, cut_depth_m, &lim) / pm->rho_loose_kg_m3;
+  if (v >= pm->blade_lcm)
+    {
+      v = pm->blade_lcm;
+      lim = SF_LIMIT_VOLUME;
+    }
+  if (limit)
+    *limit = lim;
+  return v;
+}
+
+double
+sf_push_force_needed_n (const SfPushMachine *pm, double load_kg, double grade,
+                        double cut_depth_m)
+{
+  const double t = atan (grade);
+  const double ct = cos (t), st = sin (t);
+  const double G = load_kg * SF_G_MS2;
+  const double per_g = (1.0 - pm->carry_share) * pm->mu_soil * ct
+                       + pm->mu_steel * pm->lift_factor + st;
+  return G * per_g + pm->weight_n * st + pm->k_cut_pa * pm->blade_width_m * MAX (cut_depth_m, 0.0);
+}
+
+double
+sf_push_speed_ms (const SfPushMachine *pm, double force_n, double gear_top_ms)
+{
+  if (force_n <= pm->drawbar_power_w / gear_top_ms)
+    return gear_top_ms;
+  return pm->drawbar_power_w / force_n;
+}
+
+/* ---- lanes ---------------------------------------------------------------- */
+
+SfLane *
+sf_lane_new (const double *surface, const double *base, guint n, double x0_m, double dx_m,
+             double width_m, double tan_repose)
+{
+  SfLane *l = g_new0 (SfLane, 1);
+  l->n = n;
+  l->x0_m = x0_m;
+  l->dx_m = dx_m;
+  l->width_m = width_m;
+  l->z = g_memdup2 (surface, n * sizeof (double));
+  l->base = base;
+  l->dumped = g_new0 (double, n);
+  l->scratch = g_new0 (double, n);
+  l->tan_repose = tan_repose;
+  return l;
+}
+
+void
+sf_lane_free (SfLane *lane)
+{
+  if (!lane)
+    return;
+  g_free (lane->z);
+  g_free (lane->dumped);
+  g_free (lane->scratch);
+  g_free (lane);
+}
+
+double
+sf_lane_volume_above (const SfLane *lane, const double *level, guint i0, guint i1)
+{
+  double a = sf_heights_area_between (lane->z, level, i0, MIN (i1, lane->n), lane->x0_m,
+                                      lane->dx_m, NULL, NULL);
+  return a * lane->width_m;
+}
+
+/* Grade under a machine centred on cell i of heights h (rise over run in +x). */
+static double
+grade_at (const double *h, guint n, guint i, guint k)
+{
+  guint a = i >= k ? i - k : 0;
+  guint b = MIN (i + k, n - 1);
+  return b > a ? (h[b] - h[a]) / (double) (b - a) : 0.0;
+}
+
+SfPushStatus
+sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target, guint i_cut_end,
+               double tol_m, double min_volume_lcm, SfPushResult *res)
+{
+  memset (res, 0, sizeof *res);
+  const guint n = lane->n;
+  const double dx = lane->dx_m, w = lane->width_m, cell_area = dx * w;
+  double *z = lane->z;
+  i_cut_end = MIN (i_cut_end, n);
+  const guint k = MAX (1u, (guint) lround (SF_GRADE_HALF_WINDOW_M / dx));
+
+  /* Front of the cut zone and what is left in it. */
+  double left = 0;
+  gint i_f = -1;
+  for (guint i = 0; i < i_cut_end; i++)
+    {
+      double e = z[i] - target[i];
+      if (e > tol_m)
+        {
+          left += e * cell_area;
+          i_f = (gint) i;
+        }
+    }
+  if (i_f < 0 || left < min_volume_lcm)
+    return SF_PUSH_NOTHING_LEFT;
+
+  /* Start far enough back to fill the blade with layers of the pass depth. */
+  const double h_pass = pm->blade_lcm / (w * pm->load_distance_m);
+  double acc = 0;
+  gint i_s = i_f;
+  while (i_s > 0)
+    {
+      double e = z[i_s] - target[i_s];
+      if (e > tol_m)
+        acc += MIN (e, h_pass) * cell_area;
+      if (acc >= pm->blade_lcm)
+        break;
+      i_s--;
+    }
+
+  /* Load and carry. */
+  double V = 0, t_load = 0, t_carry = 0, grade_sum = 0;
+  guint dirty_lo = (guint) i_s > 0 ? (guint) i_s - 1 : 0, dirty_hi = (guint) i_f + 2;
+  gint i_last_cut = i_s;
+  guint i = (guint) i_s;
+  for (;; i++)
+    {
+      if ((gint) i <= i_f)
+        {
+          /* Loading: the machine rides on the target it cuts to. */
+          double g = grade_at (target, n, i, k);
+          double e = z[i] - target[i];
+          double h = e > tol_m ? MIN (e, h_pass) : 0.0;
+          double take = 0;
+          if (h > 0)
+            {
+              double cap = sf_push_max_load_lcm (pm, g, h, NULL);
+              take = MIN (h * cell_area, MAX (cap - V, 0.0));
+            }
+          if (take > 0)
+            {
+              double dz = take / cell_area;
+              z[i] -= dz;
+              double r = MIN (lane->dumped[i], dz);
+              lane->dumped[i] -= r;
+              res->rehandled_lcm += r * cell_area;
+              res->removed_lcm += take;
+              V += take;
+              i_last_cut = (gint) i;
+            }
+          double f = sf_push_force_needed_n (pm, V * pm->rho_loose_kg_m3, g, take > 0 ? h : 0.0);
+          t_load += dx / sf_push_speed_ms (pm, f, pm->v_push_ms);
+          grade_sum += g;
+        }
+      else
+        {
+          /* Carrying: drop what the force balance cannot hold here. */
+          double g = grade_at (z, n, i, k);
+          double cap = sf_push_max_load_lcm (pm, g, 0.0, NULL);
+          if (V > cap)
+            {
+              double drop = V - cap;
+              z[i] += drop / cell_area;
+              res->dropped_lcm += drop;
+              V = cap;
+              dirty_hi = MAX (dirty_hi, i + 2);
+            }
+          double f = sf_push_force_needed_n (pm, V * pm->rho_loose_kg_m3, g, 0.0);
+          t_carry += dx / sf_push_speed_ms (pm, f, pm->v_push_ms);
+          grade_sum += g;
+        }
+      /* Side spill over this cell. */
+      if (V > 0 && pm->spill_per_m > 0)
+        {
+          double s = V * MIN (pm->spill_per_m * dx, 1.0);
+          z[i] += s / cell_area;
+          res->spilled_lcm += s;
+          V -= s;
+          dirty_hi = MAX (dirty_hi, i + 2);
+        }
+      res->peak_load_lcm = MAX (res->peak_load_lcm, V);
+      /* Dump edge ahead, end of profile, or nothing left on the blade. */
+      if (i + 1 >= n)
+        break;
+      if ((gint) i >= i_f && (z[i + 1] - z[i]) / dx < -pm->max_drive_grade)
+        break;
+      if ((gint) i >= i_f && V <= 0)
+        break;
+    }
+  const guint i_c = i;
+
+  /* Dump: the load runs down ahead of the blade at the angle of repose. */
+  if (V > 0)
+    {
+      guint from = i_c + 1 < n ? i_c + 1 : i_c;
+      memcpy (lane->scratch + from, z + from, (n - from) * sizeof (double));
+      guint i_front = i_c;
+      double unfit = sf_heights_deposit_face (z, n, lane->x0_m, dx, i_c, z[i_c], lane->tan_repose,
+                                              V / w, &i_front);
+      for (guint j = from; j <= i_front && j < n; j++)
+        lane->dumped[j] += z[j] - lane->scratch[j];
+      double placed = V - unfit * w;
+      res->deposited_lcm = placed;
+      if (unfit > 0)
+        {
+          /* No room before the end of the profile: it stays at the edge. */
+          res->unplaced_lcm = unfit * w;
+          res->dropped_lcm += unfit * w;
+          z[i_c] += unfit * w / cell_area;
+          dirty_hi = MAX (dirty_hi, i_c + 2);
+        }
+      dirty_hi = MAX (dirty_hi, i_front + 2);
+    }
+
+  /* Cut faces, drops and spill settle at the angle of repose. */
+  sf_heights_relax (z, lane->base, n, dx, lane->tan_repose, dirty_lo, MIN (dirty_hi, n), 1e-9,
+                    NULL, NULL);
+
+  /* Return in reverse to the start point over the new ground. */
+  double t_ret = 0;
+  for (guint j = (guint) i_s; j <= i_c; j++)
+    {
+      double g_back = -grade_at (z, n, j, k); /* travelling in -x */
+      double th = atan (g_back);
+      double f = pm->weight_n * (sin (th) + pm->return_resistance * cos (th));
+      t_ret += dx / sf_push_speed_ms (pm, f, pm->v_return_ms);
+    }
+
+  res->x_start_m = lane->x0_m + i_s * dx;
+  res->x_cut_end_m = lane->x0_m + (i_last_cut + 1) * dx;
+  res->x_dump_m = lane->x0_m + (i_c + 1) * dx;
+  res->load_m = res->x_cut_end_m - res->x_start_m;
+  res->carry_m = res->x_dump_m - res->x_cut_end_m;
+  res->return_m = res->x_dump_m - res->x_start_m;
+  res->grade_mean = grade_sum / (double) (i_c - (guint) i_s + 1);
+  res->t_fixed_s = pm->fixed_time_s;
+  res->t_load_s = t_load;
+  res->t_carry_s = t_carry;
+  res->t_return_s = t_ret;
+  res->t_cycle_s = pm->fixed_time_s + t_load + t_carry + t_ret;
+
+  if (res->removed_lcm <= 0)
+    return SF_PUSH_STALLED;
+  if (res->unplaced_lcm > 0 && res->deposited_lcm <= 0)
+    return SF_PUSH_STALLED;
+  return SF_PUSH_DONE;
+}
+
+/* ---- handbook method ------------------------------------------------------ */
+
+double
+sf_handbook_cycle_min (double fixed_min, double distance_m, double v_fwd_kmh, double v_rev_kmh)
+{
+  /* km/h -> m/min: x 1000 / 60 */
+  return fixed_min + distance_m / (v_fwd_kmh * 1000.0 / 60.0)
+         + distance_m / (v_rev_kmh * 1000.0 / 60.0);
+}
+
+double
+sf_handbook_production_lcm_h (double blade_lcm, double cycle_min, double minutes_per_h)
+{
+  return blade_lcm * minutes_per_h / cycle_min;
+}
+
+double
+sf_factors_product (const SfFactors *f)
+{
+  return f->operator_skill * f->job_efficiency * f->visibility * f->material;
+}

@@ -1,1 +1,345 @@
-/* SPDX-License-Identifier: MIT */
+/* SPDX-License-Identifier: MIT
+ *
+ * sf-slice.c — slice plans and working a lane through them.
+ */
+#include "sf-slice.h"
+
+#include <math.h>
+#include <string.h>
+#include "sf-geom.h"
+#include "sf-util.h"
+
+/* Cells closer than this to their target count as cut (m). */
+#define SF_CUT_TOL_M 0.02
+/* A slice is finished when its cut zone holds less than this share of a
+ * blade load: the last scraps go with the next slice (common practice, no
+ * source). */
+#define SF_SLICE_DONE_SHARE 0.25
+/* Planning crest rule, the same as the push's dump edge. */
+#define SF_PLAN_EDGE_GRADE 0.45
+/* Safety stop on pushes per slice per lane (a push that removes something
+ * always progresses, so this is never reached on sane input). */
+#define SF_MAX_PUSHES_PER_SLICE 100000
+
+const char *
+sf_slice_kind_to_str (SfSliceKind k)
+{
+  switch (k)
+    {
+    case SF_SLICE_TIPOVER:
+      return "tip-over";
+    case SF_SLICE_LAYER:
+      return "layer";
+    case SF_SLICE_STRAIGHT:
+      return "straight";
+    }
+  return "?";
+}
+
+static void
+slice_free (gpointer p)
+{
+  SfSlice *s = p;
+  g_free (s->target);
+  g_free (s);
+}
+
+void
+sf_slice_plan_free (SfSlicePlan *plan)
+{
+  if (!plan)
+    return;
+  g_ptr_array_unref (plan->slices);
+  g_free (plan);
+}
+
+guint
+sf_slice_cut_end (const SfSlice *s, const double *z, guint n, double tol_m)
+{
+  guint lim = MIN (s->i_limit, n - 1);
+  for (gint i = (gint) lim; i >= 0; i--)
+    if (z[i] > s->target[i] + tol_m)
+      return (guint) i + 1;
+  return 0;
+}
+
+/* First dump edge at or after cell i0: the next cell falls away steeper
+ * than a drivable grade. */
+static guint
+find_edge (const double *z, guint n, double dx, guint i0)
+{
+  for (guint i = i0; i + 1 < n; i++)
+    if ((z[i + 1] - z[i]) / dx < -SF_PLAN_EDGE_GRADE)
+      return i;
+  return n - 1;
+}
+
+static SfSlice *
+slice_new (guint n, SfSliceKind kind, double grade, guint i_limit)
+{
+  SfSlice *s = g_new0 (SfSlice, 1);
+  s->kind = kind;
+  s->grade = grade;
+  s->target = g_new (double, n);
+  s->i_limit = i_limit;
+  return s;
+}
+
+/* Applies a slice to the planning surface z: cuts to target, dumps the cut at
+ * the crest, and records volumes, centroids and push distance. */
+static void
+plan_apply (SfSlice *s, const SfBlockSection *bs, double *z, double *before, double w)
+{
+  const guint n = bs->n;
+  const double dx = bs->dx_m;
+  guint end = sf_slice_cut_end (s, z, n, SF_CUT_TOL_M);
+  double cx = 0, cz = 0;
+  double area = sf_heights_area_between (z, s->target, 0, end, bs->x0_m, dx, &cx, &cz);
+  s->cut_lcm = area * w;
+  s->cut_cx_m = cx;
+  s->cut_cz_m = cz;
+  for (guint i = 0; i < end; i++)
+    if (z[i] > s->target[i])
+      z[i] = s->target[i];
+  if (area <= 0)
+    return;
+  guint crest = find_edge (z, n, dx, end > 0 ? end - 1 : 0);
+  memcpy (before, z, n * sizeof (double));
+  guint front = crest;
+  double unfit = sf_heights_deposit_face (z, n, bs->x0_m, dx, crest, z[crest], bs->tan_repose,
+                                          area, &front);
+  double fx = 0, fz = 0;
+  double fill = sf_heights_area_between (z, before, 0, n, bs->x0_m, dx, &fx, &fz);
+  s->fill_lcm = fill * w;
+  (void) unfit;
+  if (fill > 0)
+    {
+      s->fill_cx_m = fx;
+      s->fill_cz_m = fz;
+      s->push_distance_m = fx - cx;
+      s->push_grade = s->push_distance_m > 0 ? (fz - cz) / s->push_distance_m : 0.0;
+    }
+}
+
+SfSlicePlan *
+sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_width_m,
+                   GError **error)
+{
+  const guint n = bs->n;
+  const double dx = bs->dx_m, x0 = bs->x0_m;
+  const double g_c = d->cutoff_grade_pct / 100.0;
+  g_autoptr (SfSlicePlan) plan = g_new0 (SfSlicePlan, 1);
+  plan->slices = g_ptr_array_new_with_free_func (slice_free);
+  plan->n = n;
+  plan->lane_width_m = lane_width_m;
+
+  g_autofree double *z = g_memdup2 (bs->surface, n * sizeof (double));
+  g_autofree double *before = g_new (double, n);
+  const guint i_p = bs->i_pivot;
+  const guint i_toe = (guint) CLAMP ((bs->x_highwall_toe_m - x0) / dx, 0, n - 1);
+  /* The crest of the blasted ground: the first dump edge past the pivot. */
+  const guint i_crest0 = MAX (find_edge (z, n, dx, i_p), i_p + 1);
+
+  /* The cut-off ramp through the pivot; beyond the pivot it keeps falling. */
+  g_autofree double *ramp = g_new (double, n);
+  for (guint i = 0; i < n; i++)
+    {
+      double x = x0 + (i + 0.5) * dx;
+      ramp[i] = MAX (bs->base[i], bs->z_pivot_m + g_c * (bs->x_pivot_m - x));
+      if (i <= i_p)
+        ramp[i] = MAX (ramp[i], bs->floor[i]);
+    }
+
+  /* The final target left of the pivot is the dozer floor. */
+  plan->dozable_lcm = sf_heights_area_between (bs->surface, bs->floor, 0, i_p + 1, x0, dx, NULL,
+                                               NULL)
+                      * lane_width_m;
+  if (d->pivot == SF_PIVOT_LIFTED)
+    {
+      g_autofree double *std_floor = g_new (double, n);
+      for (guint i = 0; i < n; i++)
+        std_floor[i] = bs->coal_roof[i] + d->dozer_floor_above_coal_m;
+      /* the key: between the ramped floor and the standard floor, under the
+       * ground */
+      g_autofree double *capped = g_new (double, n);
+      for (guint i = 0; i < n; i++)
+        capped[i] = MIN (bs->floor[i], bs->surface[i]);
+      plan->key_lcm = sf_heights_area_between (capped, std_floor, 0, i_p + 1, x0, dx, NULL, NULL)
+                      * lane_width_m;
+    }
+
+  if (plan->dozable_lcm <= 0)
+    {
+      g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_GEOMETRY,
+                   "block %u: the ground never stands above the dozer floor on the highwall side "
+                   "of the pivot (x = %.1f m): nothing to doze",
+                   bs->block, bs->x_pivot_m);
+      return NULL;
+    }
+
+  if (d->strategy == SF_SLICES_TIPOVER_LAYERS)
+    {
+      SfSlice *s0 = slice_new (n, SF_SLICE_TIPOVER, g_c, i_crest0);
+      memcpy (s0->target, ramp, n * sizeof (double));
+      g_ptr_array_add (plan->slices, s0);
+      plan_apply (s0, bs, z, before, lane_width_m);
+      /* Layers: from the highest ground left on the ramp down to the pivot. */
+      double z_top = bs->z_pivot_m;
+      for (guint i = 0; i <= i_p; i++)
+        z_top = MAX (z_top, MIN (z[i], ramp[i]));
+      for (guint k = 1; k <= d->layer_count; k++)
+        {
+          double level = bs->z_pivot_m + (z_top - bs->z_pivot_m) * (double) (d->layer_count - k)
+                                             / (double) d->layer_count;
+          SfSlice *s = slice_new (n, SF_SLICE_LAYER, 0.0, i_p);
+          for (guint i = 0; i < n; i++)
+            s->target[i] = MAX (bs->floor[i], MIN (level, ramp[i]));
+          if (k == d->layer_count)
+            for (guint i = 0; i <= i_p; i++)
+              s->target[i] = bs->floor[i];
+          g_ptr_array_add (plan->slices, s);
+          plan_apply (s, bs, z, before, lane_width_m);
+        }
+    }
+  else
+    {
+      const double g_min = d->min_push_grade_pct / 100.0;
+      const double x_toe = x0 + (i_toe + 0.5) * dx;
+      const double z_a1 = bs->z_pivot_m + g_c * (bs->x_pivot_m - x_toe);
+      const double z_an = bs->floor[i_toe];
+      const guint m = d->straight_count;
+      for (guint k = 1; k <= m; k++)
+        {
+          double f = m > 1 ? (double) (k - 1) / (double) (m - 1) : 1.0;
+          double g = g_c + (g_min - g_c) * f;
+          double za = z_a1 + (z_an - z_a1) * f;
+          SfSlice *s = slice_new (n, SF_SLICE_STRAIGHT, g, i_crest0);
+          for (guint i = 0; i < n; i++)
+            {
+              double x = x0 + (i + 0.5) * dx;
+              double line = za - g * (x - x_toe);
+              s->target[i] = i <= i_p ? MAX (bs->floor[i], line) : MAX (bs->base[i], line);
+            }
+          if (k == m)
+            for (guint i = 0; i <= i_p; i++)
+              s->target[i] = bs->floor[i];
+          g_ptr_array_add (plan->slices, s);
+          plan_apply (s, bs, z, before, lane_width_m);
+        }
+    }
+  for (guint k = 0; k < plan->slices->len; k++)
+    ((SfSlice *) g_ptr_array_index (plan->slices, k))->index = k;
+  return g_steal_pointer (&plan);
+}
+
+void
+sf_lane_work (const SfPushMachine *pm, SfLane *lane, const SfSlicePlan *plan,
+              const SfFactors *factors, double swell, GArray *out, SfLaneTotals *totals,
+              SfPushObserver push_cb, gpointer user_data)
+{
+  const double fprod = sf_factors_product (factors);
+  const double lcm2bcm = 1.0 / (1.0 + swell);
+  /* Loose volume of the lane: it must not change (every push conserves it). */
+  double sum0 = 0;
+  for (guint i = 0; i < lane->n; i++)
+    sum0 += lane->z[i] - lane->base[i];
+  memset (totals, 0, sizeof *totals);
+  const SfSlice *last = g_ptr_array_index (plan->slices, plan->slices->len - 1);
+  /* Planned: the material above the final targets inside the cut zones. */
+  {
+    double planned = 0;
+    const SfSlice *s0 = g_ptr_array_index (plan->slices, 0);
+    guint lim = s0->i_limit;
+    for (guint i = 0; i <= lim && i < lane->n; i++)
+      {
+        double t = last->target[i];
+        if (i > last->i_limit)
+          t = s0->target[i];
+        if (lane->z[i] > t)
+          planned += (lane->z[i] - t) * lane->dx_m * lane->width_m;
+      }
+    totals->planned_bcm = planned * lcm2bcm;
+  }
+
+  const double done_lcm = SF_SLICE_DONE_SHARE * pm->blade_lcm;
+  for (guint k = 0; k < plan->slices->len; k++)
+    {
+      const SfSlice *s = g_ptr_array_index (plan->slices, k);
+      SfSliceResult r = { 0 };
+      r.slice = k;
+      r.kind = sf_slice_kind_to_str (s->kind);
+      r.end_reason = "done";
+      double load_sum = 0, push_sum = 0, t_sum = 0;
+      for (guint p = 0;; p++)
+        {
+          if (p >= SF_MAX_PUSHES_PER_SLICE)
+            {
+              r.end_reason = "push limit";
+              break;
+            }
+          guint end = sf_slice_cut_end (s, lane->z, lane->n, SF_CUT_TOL_M);
+          SfPushResult pr;
+          SfPushStatus st = sf_push_cycle (pm, lane, s->target, end, SF_CUT_TOL_M, done_lcm, &pr);
+          if (st == SF_PUSH_NOTHING_LEFT)
+            break;
+          if (st == SF_PUSH_STALLED)
+            {
+              r.end_reason = pr.unplaced_lcm > 0 ? "no dump room" : "cannot cut";
+              break;
+            }
+          if (push_cb)
+            push_cb (&pr, k, user_data);
+          r.pushes++;
+          r.removed_lcm += pr.removed_lcm;
+          r.deposited_lcm += pr.deposited_lcm;
+          r.dropped_lcm += pr.dropped_lcm;
+          r.spilled_lcm += pr.spilled_lcm;
+          r.rehandled_lcm += pr.rehandled_lcm;
+          load_sum += pr.deposited_lcm;
+          push_sum += pr.x_dump_m - pr.x_start_m;
+          t_sum += pr.t_cycle_s;
+          if (pr.unplaced_lcm > 0)
+            {
+              r.end_reason = "no dump room";
+              break;
+            }
+        }
+      r.moved_bcm = r.deposited_lcm * lcm2bcm;
+      r.operating_h = t_sum / 3600.0 / fprod;
+      r.bcm_per_operating_h = r.operating_h > 0 ? r.moved_bcm / r.operating_h : 0.0;
+      if (r.pushes > 0)
+        {
+          r.mean_load_lcm = load_sum / r.pushes;
+          r.mean_push_m = push_sum / r.pushes;
+          r.mean_cycle_min = t_sum / r.pushes / 60.0;
+        }
+      g_array_append_val (out, r);
+      totals->pushes += r.pushes;
+      totals->moved_bcm += r.moved_bcm;
+      totals->rehandled_bcm += r.rehandled_lcm * lcm2bcm;
+      totals->operating_h += r.operating_h;
+      if (g_strcmp0 (r.end_reason, "done") != 0)
+        break;
+    }
+  totals->bcm_per_operating_h = totals->operating_h > 0 ? totals->moved_bcm / totals->operating_h
+                                                        : 0.0;
+  totals->key_bcm = plan->key_lcm * lcm2bcm;
+
+  /* Left for the next fleet: what still stands above the final targets. */
+  {
+    double left = 0;
+    const SfSlice *s0 = g_ptr_array_index (plan->slices, 0);
+    for (guint i = 0; i <= s0->i_limit && i < lane->n; i++)
+      {
+        double t = i > last->i_limit ? s0->target[i] : last->target[i];
+        if (lane->z[i] > t)
+          left += (lane->z[i] - t) * lane->dx_m * lane->width_m;
+      }
+    totals->left_bcm = left * lcm2bcm;
+    totals->dropped_left_bcm = MAX (0.0, totals->planned_bcm - totals->moved_bcm - totals->left_bcm);
+  }
+  double sum1 = 0;
+  for (guint i = 0; i < lane->n; i++)
+    sum1 += lane->z[i] - lane->base[i];
+  totals->lane_volume_error = fabs (sum1 - sum0) / MAX (fabs (sum0), 1e-300);
+}

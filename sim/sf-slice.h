@@ -1,3 +1,86 @@
-/* SPDX-License-Identifier: MIT */
+/* SPDX-License-Identifier: MIT
+ *
+ * sf-slice.h — slice plans: the order in which a block's material is dozed
+ * (internal to sim/).
+ *
+ * Owns: turning a block section and a design into an ordered sequence of
+ * slices, each a target surface across the lane with the cut zone it
+ * applies to, and the planned (geometric) cut and fill volumes, centroids,
+ * push distance and grade of each slice; and working one lane through its
+ * slices push by push with one machine.
+ *
+ * Strategies (docs/model.md §5):
+ *  - tip-over then layers: slice 0 cuts everything above the cut-off ramp, a
+ *    line through the pivot rising towards the highwall at the cut-off grade,
+ *    out to the crest of the blasted ground, and tips it over the crest; then
+ *    horizontal layers down to the dozer floor, each ending on the ramp and
+ *    pushed through the pivot;
+ *  - straight push: straight target lines from the highwall end to the fill,
+ *    their grade easing from the cut-off grade to the flattest grade and their
+ *    highwall end dropping to the dozer floor; each line's pivot is where it
+ *    crosses the ground at the start of the slice, so it moves slice by slice,
+ *    and fill placed under one line and above the next is cut again
+ *    (rehandle, counted per push).
+ *
+ * A plan owns its slices and their target arrays; free with
+ * sf_slice_plan_free().
+ */
 #pragma once
+
 #include <glib.h>
+#include "sf-push.h"
+#include "sf-section.h"
+#include "stripfleet.h"
+
+G_BEGIN_DECLS
+
+typedef enum {
+  SF_SLICE_TIPOVER = 0,
+  SF_SLICE_LAYER,
+  SF_SLICE_STRAIGHT,
+} SfSliceKind;
+
+const char *sf_slice_kind_to_str (SfSliceKind k);
+
+typedef struct {
+  guint index;
+  SfSliceKind kind;
+  double grade;          /* design grade of the target line, fall towards the void (rise/run) */
+  double *target;        /* n heights, owned */
+  guint i_limit;         /* the cut zone never reaches past this cell */
+  /* planned on the design sequence, per lane (loose m3) */
+  double cut_lcm, fill_lcm;
+  double cut_cx_m, cut_cz_m, fill_cx_m, fill_cz_m;
+  double push_distance_m; /* centroid of cut to centroid of fill */
+  double push_grade;      /* (fill cz - cut cz) / push distance */
+} SfSlice;
+
+typedef struct {
+  GPtrArray *slices;     /* SfSlice *, owned */
+  guint n;               /* cells */
+  double lane_width_m;
+  double dozable_lcm;    /* above the final target inside the cut zones, per lane */
+  double key_lcm;        /* material left under a lifted pivot's ramp, per lane */
+} SfSlicePlan;
+
+SfSlicePlan *sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_width_m,
+                                GError **error);
+void sf_slice_plan_free (SfSlicePlan *plan);
+G_DEFINE_AUTOPTR_CLEANUP_FUNC (SfSlicePlan, sf_slice_plan_free)
+
+/* Cut-zone end for a slice on the current lane: one past the last cell at or
+ * before slice->i_limit that stands more than tol above the target. */
+guint sf_slice_cut_end (const SfSlice *s, const double *z, guint n, double tol_m);
+
+/* Works one lane through every slice of the plan with one machine.  Appends
+ * one SfSliceResult per slice to `out` (GArray of SfSliceResult) and fills
+ * the totals.  Pushes are made until each slice holds less than the
+ * completion threshold (a quarter of a blade load) or a push stalls; the
+ * reason is recorded.  `push_cb`, when not NULL, sees every push. */
+typedef void (*SfPushObserver) (const SfPushResult *r, guint slice, gpointer user_data);
+
+void sf_lane_work (const SfPushMachine *pm, SfLane *lane, const SfSlicePlan *plan,
+                   const SfFactors *factors, double swell, GArray *out, SfLaneTotals *totals,
+                   SfPushObserver push_cb, gpointer user_data);
+
+G_END_DECLS

@@ -73,4 +73,59 @@ const char *sf_scenario_get_class_name (const SfScenario *sc, guint class_index)
 /* Index of the class named `name`, or -1. */
 int sf_scenario_find_class (const SfScenario *sc, const char *name);
 
+/* ---- block studies: slice plans and one lane pushed out -------------------- */
+
+/* Overrides of the scenario's design for a study; -1 / negative = as given. */
+typedef struct {
+  int strategy;          /* 0 tip-over-layers, 1 straight-push, -1 as scenario */
+  int pivot;             /* 0 standard, 1 lifted, -1 as scenario */
+  double pivot_lift_m;   /* used when pivot = 1 and > 0 */
+} SfStudyOptions;
+
+#define SF_STUDY_OPTIONS_INIT { -1, -1, -1.0 }
+
+/* One slice of a block's plan, per lane (volumes loose m3 and bank m3). */
+typedef struct {
+  guint index;
+  const char *kind;      /* "tip-over", "layer", "straight"; static string */
+  double target_grade_pct;
+  double cut_lcm, cut_bcm, fill_lcm;
+  double cut_centroid_x_m, fill_centroid_x_m;
+  double push_distance_m;
+  double push_grade_pct; /* + uphill in the push direction */
+} SfSliceInfo;
+
+/* One slice worked out on one lane by one machine. */
+typedef struct {
+  guint slice;
+  const char *kind;
+  guint pushes;
+  double removed_lcm, deposited_lcm, dropped_lcm, spilled_lcm, rehandled_lcm;
+  double moved_bcm;          /* deposited at the dump front, bank m3 */
+  double operating_h;        /* sum of cycle times / production factors */
+  double bcm_per_operating_h;
+  double mean_load_lcm;      /* mean load at the dump */
+  double mean_push_m;        /* mean distance from cut start to dump */
+  double mean_cycle_min;
+  const char *end_reason;    /* static string */
+} SfSliceResult;
+
+typedef struct {
+  guint pushes;
+  double planned_bcm;        /* above the final target in the cut zones at the start */
+  double moved_bcm, dropped_left_bcm, left_bcm, rehandled_bcm, key_bcm;
+  double operating_h, bcm_per_operating_h;
+  double lane_volume_error;  /* relative change of the lane's total loose volume */
+} SfLaneTotals;
+
+/* The slice plan of `block` (per lane); GArray of SfSliceInfo, caller frees. */
+GArray *sf_study_slice_plan (const SfScenario *sc, guint block, const SfStudyOptions *opt,
+                             GError **error);
+
+/* Pushes one lane of `block` to completion with one machine of class
+ * `class_index`; returns a GArray of SfSliceResult (caller frees) and fills
+ * *totals. */
+GArray *sf_study_push_lane (const SfScenario *sc, guint block, guint lane, guint class_index,
+                            const SfStudyOptions *opt, SfLaneTotals *totals, GError **error);
+
 G_END_DECLS

@@ -1,9 +1,396 @@
-/* SPDX-License-Identifier: MIT */
+/* SPDX-License-Identifier: MIT
+ *
+ * stripfleet — command-line client of the stripfleet library.
+ *
+ * A thin client: it parses options (GOptionContext, one context per verb),
+ * calls the public API in stripfleet.h and prints tables.  Exit codes are the
+ * SF_EXIT_* values (docs/cli.md).
+ */
+#include <locale.h>
 #include <stdio.h>
+#include <string.h>
+
 #include "stripfleet.h"
+
+static const char CAUTION[] =
+  "Planning estimate only: not a work instruction. Dozing near crests, voids and highwalls\n"
+  "can kill; edge windrows, spacing between machines, ground stability and fatigue are governed\n"
+  "by local regulations, site procedures and licensed practice.\n";
+
+typedef int (*VerbFn) (int argc, char **argv);
+
+typedef struct {
+  const char *name;
+  const char *summary;
+  VerbFn fn;
+} Verb;
+
+static int verb_validate (int argc, char **argv);
+static int verb_plan (int argc, char **argv);
+static int verb_lane (int argc, char **argv);
+static int verb_compare (int argc, char **argv);
+
+static const Verb VERBS[] = {
+  { "validate", "check a scenario and report every problem", verb_validate },
+  { "plan", "print a block's slice plan (volumes, push distances, grades)", verb_plan },
+  { "lane", "push one lane of a block to completion with one dozer", verb_lane },
+  { "compare", "production gain of straight pushes and of a carry blade", verb_compare },
+};
+
+/* Parses verb options; on failure prints the message and a hint. */
+static gboolean
+parse_verb (GOptionContext *ctx, const char *verb, int *argc, char ***argv, int want_args)
+{
+  g_autoptr (GError) err = NULL;
+  if (!g_option_context_parse (ctx, argc, argv, &err))
+    {
+      g_printerr ("stripfleet %s: %s\nTry 'stripfleet %s --help'.\n", verb, err->message, verb);
+      return FALSE;
+    }
+  if (*argc - 1 != want_args)
+    {
+      g_printerr ("stripfleet %s: expected %d argument%s (SCENARIO), found %d\nTry 'stripfleet "
+                  "%s --help'.\n",
+                  verb, want_args, want_args == 1 ? "" : "s", *argc - 1, verb);
+      return FALSE;
+    }
+  return TRUE;
+}
+
+static SfScenario *
+load_or_report (const char *path, int *rc)
+{
+  g_autoptr (GError) err = NULL;
+  SfScenario *sc = sf_scenario_load_from_file (path, &err);
+  if (!sc)
+    {
+      g_printerr ("%s\n", err->message);
+      *rc = err->code == SF_SCENARIO_ERROR_IO ? SF_EXIT_RUNTIME : SF_EXIT_INVALID;
+      if (err->domain == SF_SCENARIO_ERROR && err->code == SF_SCENARIO_ERROR_IO)
+        *rc = SF_EXIT_INVALID;
+    }
+  return sc;
+}
+
+static int
+verb_validate (int argc, char **argv)
+{
+  g_autoptr (GOptionContext) ctx = g_option_context_new ("SCENARIO - check a scenario file");
+  g_option_context_set_summary (ctx, "Reads SCENARIO, checks every field, and reports every "
+                                     "problem (file, JSON path or CSV line, what was expected).\n"
+                                     "Exit 0 only when the scenario is valid; 3 when it is not.");
+  if (!parse_verb (ctx, "validate", &argc, &argv, 1))
+    return SF_EXIT_USAGE;
+  int rc = SF_EXIT_OK;
+  g_autoptr (SfScenario) sc = load_or_report (argv[1], &rc);
+  if (!sc)
+    return rc;
+  /* The loader checks fields; building every block's section and plan checks
+   * the geometry. */
+  int bad = 0;
+  for (guint b = 0; b < sf_scenario_get_n_blocks (sc); b++)
+    {
+      g_autoptr (GError) err = NULL;
+      g_autoptr (GArray) plan = sf_study_slice_plan (sc, b, NULL, &err);
+      if (!plan)
+        {
+          g_printerr ("%s: %s\n", argv[1], err->message);
+          bad++;
+        }
+    }
+  if (bad)
+    return SF_EXIT_INVALID;
+  printf ("%s: valid (%u blocks, %u lanes per block, %u dozer classes)\n", argv[1],
+          sf_scenario_get_n_blocks (sc), sf_scenario_get_n_lanes (sc),
+          sf_scenario_get_n_classes (sc));
+  return SF_EXIT_OK;
+}
+
+static char *opt_strategy = NULL;
+static char *opt_pivot = NULL;
+static double opt_lift_m = -1;
+static int opt_block = 0;
+static int opt_lane = 0;
+static char *opt_class = NULL;
+static char *opt_against = NULL;
+
+static GOptionEntry design_entries[] = {
+  { "block", 'b', 0, G_OPTION_ARG_INT, &opt_block, "Block number, from 0 (default 0)", "N" },
+  { "strategy", 's', 0, G_OPTION_ARG_STRING, &opt_strategy,
+    "Slice strategy: tip-over-layers or straight-push (default: as in the scenario)", "NAME" },
+  { "pivot", 'p', 0, G_OPTION_ARG_STRING, &opt_pivot,
+    "Pivot: standard or lifted (default: as in the scenario)", "KIND" },
+  { "lift-m", 0, 0, G_OPTION_ARG_DOUBLE, &opt_lift_m, "Lift of a lifted pivot, m", "H" },
+  { NULL }
+};
+
+static gboolean
+study_options (SfStudyOptions *o)
+{
+  *o = (SfStudyOptions) SF_STUDY_OPTIONS_INIT;
+  if (opt_strategy)
+    {
+      if (!strcmp (opt_strategy, "tip-over-layers"))
+        o->strategy = 0;
+      else if (!strcmp (opt_strategy, "straight-push"))
+        o->strategy = 1;
+      else
+        {
+          g_printerr ("stripfleet: --strategy: expected tip-over-layers or straight-push, found "
+                      "'%s'\n",
+                      opt_strategy);
+          return FALSE;
+        }
+    }
+  if (opt_pivot)
+    {
+      if (!strcmp (opt_pivot, "standard"))
+        o->pivot = 0;
+      else if (!strcmp (opt_pivot, "lifted"))
+        o->pivot = 1;
+      else
+        {
+          g_printerr ("stripfleet: --pivot: expected standard or lifted, found '%s'\n", opt_pivot);
+          return FALSE;
+        }
+    }
+  o->pivot_lift_m = opt_lift_m;
+  if (opt_block < 0)
+    {
+      g_printerr ("stripfleet: --block: expected a block number from 0, found %d\n", opt_block);
+      return FALSE;
+    }
+  return TRUE;
+}
+
+static int
+verb_plan (int argc, char **argv)
+{
+  g_autoptr (GOptionContext) ctx = g_option_context_new ("SCENARIO - print a block's slice plan");
+  g_option_context_set_summary (ctx, "Prints the ordered slices of one block, per lane: cut and "
+                                     "fill volumes, centroid-to-centroid push distance and grade.");
+  g_option_context_add_main_entries (ctx, design_entries, NULL);
+  if (!parse_verb (ctx, "plan", &argc, &argv, 1))
+    return SF_EXIT_USAGE;
+  SfStudyOptions o;
+  if (!study_options (&o))
+    return SF_EXIT_USAGE;
+  int rc = SF_EXIT_OK;
+  g_autoptr (SfScenario) sc = load_or_report (argv[1], &rc);
+  if (!sc)
+    return rc;
+  g_autoptr (GError) err = NULL;
+  g_autoptr (GArray) plan = sf_study_slice_plan (sc, (guint) opt_block, &o, &err);
+  if (!plan)
+    {
+      g_printerr ("%s: %s\n", argv[1], err->message);
+      return SF_EXIT_INVALID;
+    }
+  printf ("Slice plan, block %d of '%s' (per lane)\n\n", opt_block, sf_scenario_get_name (sc));
+  printf ("%5s %-9s %8s %10s %10s %10s %10s %10s\n", "slice", "kind", "grade%", "cut_lcm",
+          "cut_bcm", "fill_lcm", "push_m", "push_gr%");
+  double tc = 0, tb = 0, wd = 0;
+  for (guint k = 0; k < plan->len; k++)
+    {
+      const SfSliceInfo *s = &g_array_index (plan, SfSliceInfo, k);
+      printf ("%5u %-9s %8.1f %10.1f %10.1f %10.1f %10.1f %10.1f\n", s->index, s->kind,
+              s->target_grade_pct, s->cut_lcm, s->cut_bcm, s->fill_lcm, s->push_distance_m,
+              s->push_grade_pct);
+      tc += s->cut_lcm;
+      tb += s->cut_bcm;
+      wd += s->cut_bcm * s->push_distance_m;
+    }
+  printf ("%5s %-9s %8s %10.1f %10.1f %10s %10.1f\n", "all", "", "", tc, tb, "",
+          tb > 0 ? wd / tb : 0.0);
+  printf ("\n%s", CAUTION);
+  return SF_EXIT_OK;
+}
+
+static int
+resolve_class (const SfScenario *sc, const char *name, int fallback)
+{
+  if (!name)
+    return fallback;
+  int k = sf_scenario_find_class (sc, name);
+  if (k < 0)
+    g_printerr ("stripfleet: no dozer class named '%s' in the scenario\n", name);
+  return k;
+}
+
+static void
+print_lane (const GArray *res, const SfLaneTotals *t)
+{
+  printf ("%5s %-9s %7s %9s %9s %9s %9s %9s %9s %8s %8s %8s  %s\n", "slice", "kind", "pushes",
+          "moved_bcm", "drop_lcm", "spill_lcm", "rehdl_lcm", "op_h", "bcm/op_h", "load_lcm",
+          "push_m", "cyc_min", "end");
+  for (guint k = 0; k < res->len; k++)
+    {
+      const SfSliceResult *r = &g_array_index (res, SfSliceResult, k);
+      printf ("%5u %-9s %7u %9.1f %9.1f %9.1f %9.1f %9.2f %9.1f %8.1f %8.1f %8.2f  %s\n", r->slice,
+              r->kind, r->pushes, r->moved_bcm, r->dropped_lcm, r->spilled_lcm, r->rehandled_lcm,
+              r->operating_h, r->bcm_per_operating_h, r->mean_load_lcm, r->mean_push_m,
+              r->mean_cycle_min, r->end_reason);
+    }
+  printf ("%5s %-9s %7u %9.1f %9s %9s %9.1f %9.2f %9.1f\n", "all", "", t->pushes, t->moved_bcm,
+          "", "", t->rehandled_bcm, t->operating_h, t->bcm_per_operating_h);
+  printf ("\nplanned %.1f bcm; moved %.1f bcm; left above the final target %.1f bcm; "
+          "dropped in the fill %.1f bcm; key under a lifted pivot %.1f bcm\n",
+          t->planned_bcm, t->moved_bcm, t->left_bcm, t->dropped_left_bcm, t->key_bcm);
+  printf ("lane loose-volume balance: relative error %.2e\n", t->lane_volume_error);
+}
+
+static int
+verb_lane (int argc, char **argv)
+{
+  g_autoptr (GOptionContext) ctx
+    = g_option_context_new ("SCENARIO - push one lane of a block to completion");
+  GOptionEntry entries[] = {
+    { "lane", 'l', 0, G_OPTION_ARG_INT, &opt_lane, "Lane number within the block, from 0", "N" },
+    { "class", 'c', 0, G_OPTION_ARG_STRING, &opt_class,
+      "Dozer class name (default: the first class)", "NAME" },
+    { NULL }
+  };
+  g_option_context_set_summary (ctx, "Works one lane of one block through its slice plan, push "
+                                     "by push, with one dozer, and reports production per slice.");
+  g_option_context_add_main_entries (ctx, design_entries, NULL);
+  g_option_context_add_main_entries (ctx, entries, NULL);
+  if (!parse_verb (ctx, "lane", &argc, &argv, 1))
+    return SF_EXIT_USAGE;
+  SfStudyOptions o;
+  if (!study_options (&o))
+    return SF_EXIT_USAGE;
+  int rc = SF_EXIT_OK;
+  g_autoptr (SfScenario) sc = load_or_report (argv[1], &rc);
+  if (!sc)
+    return rc;
+  int k = resolve_class (sc, opt_class, 0);
+  if (k < 0 || opt_lane < 0)
+    return SF_EXIT_USAGE;
+  g_autoptr (GError) err = NULL;
+  SfLaneTotals t;
+  g_autoptr (GArray) res
+    = sf_study_push_lane (sc, (guint) opt_block, (guint) opt_lane, (guint) k, &o, &t, &err);
+  if (!res)
+    {
+      g_printerr ("%s: %s\n", argv[1], err->message);
+      return SF_EXIT_INVALID;
+    }
+  printf ("Block %d, lane %d of '%s', one %s dozer\n\n", opt_block, opt_lane,
+          sf_scenario_get_name (sc), sf_scenario_get_class_name (sc, (guint) k));
+  print_lane (res, &t);
+  printf ("\n%s", CAUTION);
+  return SF_EXIT_OK;
+}
+
+static int
+verb_compare (int argc, char **argv)
+{
+  g_autoptr (GOptionContext) ctx = g_option_context_new (
+    "SCENARIO - production gains of straight pushes and of a carry blade");
+  GOptionEntry entries[] = {
+    { "block", 'b', 0, G_OPTION_ARG_INT, &opt_block, "Block number, from 0 (default 0)", "N" },
+    { "class", 'c', 0, G_OPTION_ARG_STRING, &opt_class,
+      "Dozer class for the strategy comparison and the carry side of the blade comparison",
+      "NAME" },
+    { "against", 'a', 0, G_OPTION_ARG_STRING, &opt_against,
+      "Dozer class for the other side of the blade comparison", "NAME" },
+    { NULL }
+  };
+  g_option_context_set_summary (
+    ctx, "Pushes one lane of a block out twice and reports the production gains:\n"
+         "  straight pushes over tip-over-and-layer slices (same machine), and\n"
+         "  --class over --against (same slices), e.g. a carry blade over a U blade.");
+  g_option_context_add_main_entries (ctx, entries, NULL);
+  if (!parse_verb (ctx, "compare", &argc, &argv, 1))
+    return SF_EXIT_USAGE;
+  int rc = SF_EXIT_OK;
+  g_autoptr (SfScenario) sc = load_or_report (argv[1], &rc);
+  if (!sc)
+    return rc;
+  int ka = resolve_class (sc, opt_class, 0);
+  int kb = resolve_class (sc, opt_against, sf_scenario_get_n_classes (sc) > 1 ? 1 : 0);
+  if (ka < 0 || kb < 0 || opt_block < 0)
+    return SF_EXIT_USAGE;
+  g_autoptr (GError) err = NULL;
+  SfStudyOptions layers = SF_STUDY_OPTIONS_INIT, straight = SF_STUDY_OPTIONS_INIT;
+  layers.strategy = 0;
+  straight.strategy = 1;
+  SfLaneTotals tl, ts, ta, tb;
+  g_autoptr (GArray) rl = sf_study_push_lane (sc, (guint) opt_block, 0, (guint) ka, &layers, &tl, &err);
+  g_autoptr (GArray) rs = rl ? sf_study_push_lane (sc, (guint) opt_block, 0, (guint) ka, &straight, &ts, &err) : NULL;
+  g_autoptr (GArray) ra = rs ? sf_study_push_lane (sc, (guint) opt_block, 0, (guint) ka, NULL, &ta, &err) : NULL;
+  g_autoptr (GArray) rb = ra ? sf_study_push_lane (sc, (guint) opt_block, 0, (guint) kb, NULL, &tb, &err) : NULL;
+  if (!rb)
+    {
+      g_printerr ("%s: %s\n", argv[1], err->message);
+      return SF_EXIT_INVALID;
+    }
+  printf ("Block %d of '%s', lane 0\n\n", opt_block, sf_scenario_get_name (sc));
+  printf ("%-38s %10s %10s %10s %10s\n", "case", "moved_bcm", "op_h", "bcm/op_h", "rehdl_bcm");
+  printf ("%-38s %10.1f %10.2f %10.1f %10.1f\n", "tip-over + layers", tl.moved_bcm,
+          tl.operating_h, tl.bcm_per_operating_h, tl.rehandled_bcm);
+  printf ("%-38s %10.1f %10.2f %10.1f %10.1f\n", "straight push", ts.moved_bcm, ts.operating_h,
+          ts.bcm_per_operating_h, ts.rehandled_bcm);
+  double gain_s = 100.0 * (ts.bcm_per_operating_h / tl.bcm_per_operating_h - 1.0);
+  /* Net of rehandle: only prime bcm (moved less rehandled) count. */
+  double net_l = (tl.moved_bcm - tl.rehandled_bcm) / tl.operating_h;
+  double net_s = (ts.moved_bcm - ts.rehandled_bcm) / ts.operating_h;
+  double gain_sn = 100.0 * (net_s / net_l - 1.0);
+  printf ("  gain of straight pushes: %+.1f %% gross, %+.1f %% net of rehandle "
+          "(rule of thumb about +10 to +15 %% net: common practice, no source)\n\n",
+          gain_s, gain_sn);
+  printf ("%-38s %10.1f %10.2f %10.1f\n", sf_scenario_get_class_name (sc, (guint) ka),
+          ta.moved_bcm, ta.operating_h, ta.bcm_per_operating_h);
+  printf ("%-38s %10.1f %10.2f %10.1f\n", sf_scenario_get_class_name (sc, (guint) kb),
+          tb.moved_bcm, tb.operating_h, tb.bcm_per_operating_h);
+  printf ("  gain of %s over %s: %+.1f %% (carry blade over U blade, rule of thumb +20 to +25 %%: "
+          "common practice, no source)\n",
+          sf_scenario_get_class_name (sc, (guint) ka), sf_scenario_get_class_name (sc, (guint) kb),
+          100.0 * (ta.bcm_per_operating_h / tb.bcm_per_operating_h - 1.0));
+  printf ("\n%s", CAUTION);
+  return SF_EXIT_OK;
+}
+
+static void
+usage (FILE *f)
+{
+  fprintf (f, "Usage: stripfleet VERB [OPTION...] SCENARIO\n\n"
+              "Simulates crawler dozers pushing a designed strip push by push.\n\nVerbs:\n");
+  for (gsize i = 0; i < G_N_ELEMENTS (VERBS); i++)
+    fprintf (f, "  %-10s %s\n", VERBS[i].name, VERBS[i].summary);
+  fprintf (f, "\nOptions:\n  --version  print the version\n  --help     this text\n\n"
+              "'stripfleet VERB --help' describes a verb.\n");
+}
+
 int
 main (int argc, char **argv)
 {
-  printf ("stripfleet %s\n", SF_VERSION);
-  return 0;
+  setlocale (LC_ALL, "");
+  setlocale (LC_NUMERIC, "C"); /* JSON and CSV numbers use '.' */
+  if (argc < 2)
+    {
+      usage (stderr);
+      return SF_EXIT_USAGE;
+    }
+  if (!strcmp (argv[1], "--version") || !strcmp (argv[1], "-V"))
+    {
+      printf ("stripfleet %s\n", SF_VERSION);
+      return SF_EXIT_OK;
+    }
+  if (!strcmp (argv[1], "--help") || !strcmp (argv[1], "-h") || !strcmp (argv[1], "help"))
+    {
+      usage (stdout);
+      return SF_EXIT_OK;
+    }
+  for (gsize i = 0; i < G_N_ELEMENTS (VERBS); i++)
+    if (!strcmp (argv[1], VERBS[i].name))
+      {
+        /* The verb sees its own name as argv[0]. */
+        g_autofree char *prg = g_strdup_printf ("stripfleet %s", VERBS[i].name);
+        g_set_prgname (prg);
+        return VERBS[i].fn (argc - 1, argv + 1);
+      }
+  fprintf (stderr, "stripfleet: unknown verb '%s'\n", argv[1]);
+  usage (stderr);
+  return SF_EXIT_USAGE;
 }

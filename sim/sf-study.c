@@ -1,0 +1,118 @@
+/* SPDX-License-Identifier: MIT
+ *
+ * sf-study.c — block studies for the public API: the slice plan of a block,
+ * and one lane of a block pushed out by one machine.  Wires the section,
+ * slice and push modules together; owns nothing beyond the call.
+ */
+#include <math.h>
+
+#include "sf-push.h"
+#include "sf-scenario.h"
+#include "sf-section.h"
+#include "sf-slice.h"
+#include "stripfleet.h"
+
+static void
+design_with_options (const SfScenario *sc, const SfStudyOptions *opt, SfDesign *d)
+{
+  *d = sc->design;
+  if (!opt)
+    return;
+  if (opt->strategy == 0)
+    d->strategy = SF_SLICES_TIPOVER_LAYERS;
+  else if (opt->strategy == 1)
+    d->strategy = SF_SLICES_STRAIGHT;
+  if (opt->pivot == 0)
+    d->pivot = SF_PIVOT_STANDARD;
+  else if (opt->pivot == 1)
+    {
+      d->pivot = SF_PIVOT_LIFTED;
+      if (opt->pivot_lift_m > 0)
+        d->pivot_lift_m = opt->pivot_lift_m;
+      if (d->pivot_lift_m <= 0)
+        d->pivot_lift_m = 3.0;
+    }
+}
+
+/* A copy of the scenario's view with another design: the section module
+ * reads the design from the scenario, so the study builds its section on a
+ * shallow copy whose design is replaced. */
+static SfBlockSection *
+study_section (const SfScenario *sc, const SfDesign *d, guint block, GError **error)
+{
+  SfScenario tmp = *sc;
+  tmp.design = *d;
+  return sf_block_section_new (&tmp, block, error);
+}
+
+GArray *
+sf_study_slice_plan (const SfScenario *sc, guint block, const SfStudyOptions *opt,
+                     GError **error)
+{
+  g_return_val_if_fail (sc != NULL, NULL);
+  SfDesign d;
+  design_with_options (sc, opt, &d);
+  g_autoptr (SfBlockSection) bs = study_section (sc, &d, block, error);
+  if (!bs)
+    return NULL;
+  g_autoptr (SfSlicePlan) plan = sf_slice_plan_new (bs, &d, sc->strip.lane_width_m, error);
+  if (!plan)
+    return NULL;
+  const double lcm2bcm = 1.0 / (1.0 + sc->material.swell);
+  GArray *out = g_array_new (FALSE, TRUE, sizeof (SfSliceInfo));
+  for (guint k = 0; k < plan->slices->len; k++)
+    {
+      const SfSlice *s = g_ptr_array_index (plan->slices, k);
+      SfSliceInfo info = {
+        .index = k,
+        .kind = sf_slice_kind_to_str (s->kind),
+        .target_grade_pct = 100.0 * s->grade,
+        .cut_lcm = s->cut_lcm,
+        .cut_bcm = s->cut_lcm * lcm2bcm,
+        .fill_lcm = s->fill_lcm,
+        .cut_centroid_x_m = s->cut_cx_m,
+        .fill_centroid_x_m = s->fill_cx_m,
+        .push_distance_m = s->push_distance_m,
+        .push_grade_pct = 100.0 * s->push_grade,
+      };
+      g_array_append_val (out, info);
+    }
+  return out;
+}
+
+GArray *
+sf_study_push_lane (const SfScenario *sc, guint block, guint lane, guint class_index,
+                    const SfStudyOptions *opt, SfLaneTotals *totals, GError **error)
+{
+  g_return_val_if_fail (sc != NULL && totals != NULL, NULL);
+  if (class_index >= sc->classes->len)
+    {
+      g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_ARGUMENT,
+                   "dozer class %u does not exist: the scenario defines %u", class_index,
+                   sc->classes->len);
+      return NULL;
+    }
+  if (lane >= sf_scenario_get_n_lanes (sc))
+    {
+      g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_ARGUMENT,
+                   "lane %u does not exist: each block has lanes 0 to %u", lane,
+                   sf_scenario_get_n_lanes (sc) - 1);
+      return NULL;
+    }
+  SfDesign d;
+  design_with_options (sc, opt, &d);
+  g_autoptr (SfBlockSection) bs = study_section (sc, &d, block, error);
+  if (!bs)
+    return NULL;
+  g_autoptr (SfSlicePlan) plan = sf_slice_plan_new (bs, &d, sc->strip.lane_width_m, error);
+  if (!plan)
+    return NULL;
+  const SfDozerClass *c = g_ptr_array_index (sc->classes, class_index);
+  SfPushMachine pm;
+  sf_push_machine_init (&pm, c, &sc->material, &d);
+  g_autoptr (SfLane) ln = sf_lane_new (bs->surface, bs->base, bs->n, bs->x0_m, bs->dx_m,
+                                       sc->strip.lane_width_m, bs->tan_repose);
+  GArray *out = g_array_new (FALSE, TRUE, sizeof (SfSliceResult));
+  sf_lane_work (&pm, ln, plan, &sc->factors, sc->material.swell, out, totals, NULL, NULL);
+  return out;
+}
