@@ -176,13 +176,14 @@ sf_lane_volume_above (const SfLane *lane, const double *level, guint i0, guint i
   return a * lane->width_m;
 }
 
-/* Grade under a machine centred on cell i of heights h (rise over run in +x). */
+/* Grade under a machine centred on cell i of heights h (rise over run in +x),
+ * over cells i-k .. i+k of width dx. */
 static double
-grade_at (const double *h, guint n, guint i, guint k)
+grade_at (const double *h, guint n, double dx, guint i, guint k)
 {
   guint a = i >= k ? i - k : 0;
   guint b = MIN (i + k, n - 1);
-  return b > a ? (h[b] - h[a]) / (double) (b - a) : 0.0;
+  return b > a ? (h[b] - h[a]) / ((double) (b - a) * dx) : 0.0;
 }
 
 SfPushStatus
@@ -235,7 +236,7 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target, guin
       if ((gint) i <= i_f)
         {
           /* Loading: the machine rides on the target it cuts to. */
-          double g = grade_at (target, n, i, k);
+          double g = grade_at (target, n, dx, i, k);
           double e = z[i] - target[i];
           double h = e > tol_m ? MIN (e, h_pass) : 0.0;
           double take = 0;
@@ -262,7 +263,7 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target, guin
       else
         {
           /* Carrying: drop what the force balance cannot hold here. */
-          double g = grade_at (z, n, i, k);
+          double g = grade_at (z, n, dx, i, k);
           double cap = sf_push_max_load_lcm (pm, g, 0.0, NULL);
           if (V > cap)
             {
@@ -327,7 +328,7 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target, guin
   double t_ret = 0;
   for (guint j = (guint) i_s; j <= i_c; j++)
     {
-      double g_back = -grade_at (z, n, j, k); /* travelling in -x */
+      double g_back = -grade_at (z, n, dx, j, k); /* travelling in -x */
       double th = atan (g_back);
       double f = pm->weight_n * (sin (th) + pm->return_resistance * cos (th));
       t_ret += dx / sf_push_speed_ms (pm, f, pm->v_return_ms);
