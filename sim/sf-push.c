@@ -186,6 +186,17 @@ grade_at (const double *h, guint n, double dx, guint i, guint k)
   return b > a ? (h[b] - h[a]) / ((double) (b - a) * dx) : 0.0;
 }
 
+gboolean
+sf_heights_is_edge (const double *z, guint n, double dx_m, guint i, double grade)
+{
+  if (i + 1 >= n)
+    return FALSE;
+  guint m = MAX (1u, (guint) lround (SF_EDGE_RUN_M / dx_m));
+  guint j = MIN (i + m, n - 1);
+  return (z[j] - z[i]) / ((double) (j - i) * dx_m) < -grade
+         && (z[i + 1] - z[i]) / dx_m < -grade;
+}
+
 SfPushStatus
 sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target, guint i_cut_end,
                double tol_m, double min_volume_lcm, SfPushResult *res)
@@ -212,15 +223,19 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target, guin
   if (i_f < 0 || left < min_volume_lcm)
     return SF_PUSH_NOTHING_LEFT;
 
-  /* Start far enough back to fill the blade with layers of the pass depth. */
-  const double h_pass = pm->blade_lcm / (w * pm->load_distance_m);
+  /* The machine cuts to grade: everything above the target along its path
+   * goes into the blade until it is full, so it starts just far enough back
+   * from the front of the cut zone to fill the blade.  The cutting edge
+   * itself works at the nominal depth that fills the blade over the load
+   * distance; deeper material slumps into the blade from the face. */
+  const double h_edge = pm->blade_lcm / (w * pm->load_distance_m);
   double acc = 0;
   gint i_s = i_f;
   while (i_s > 0)
     {
       double e = z[i_s] - target[i_s];
       if (e > tol_m)
-        acc += MIN (e, h_pass) * cell_area;
+        acc += e * cell_area;
       if (acc >= pm->blade_lcm)
         break;
       i_s--;
@@ -238,11 +253,12 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target, guin
           /* Loading: the machine rides on the target it cuts to. */
           double g = grade_at (target, n, dx, i, k);
           double e = z[i] - target[i];
-          double h = e > tol_m ? MIN (e, h_pass) : 0.0;
+          double h = e > tol_m ? e : 0.0;
+          double h_cut = MIN (h, h_edge);
           double take = 0;
           if (h > 0)
             {
-              double cap = sf_push_max_load_lcm (pm, g, h, NULL);
+              double cap = sf_push_max_load_lcm (pm, g, h_cut, NULL);
               take = MIN (h * cell_area, MAX (cap - V, 0.0));
             }
           if (take > 0)
@@ -256,7 +272,7 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target, guin
               V += take;
               i_last_cut = (gint) i;
             }
-          double f = sf_push_force_needed_n (pm, V * pm->rho_loose_kg_m3, g, take > 0 ? h : 0.0);
+          double f = sf_push_force_needed_n (pm, V * pm->rho_loose_kg_m3, g, take > 0 ? h_cut : 0.0);
           t_load += dx / sf_push_speed_ms (pm, f, pm->v_push_ms);
           grade_sum += g;
         }
@@ -290,7 +306,7 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target, guin
       /* Dump edge ahead, end of profile, or nothing left on the blade. */
       if (i + 1 >= n)
         break;
-      if ((gint) i >= i_f && (z[i + 1] - z[i]) / dx < -pm->max_drive_grade)
+      if ((gint) i >= i_f && sf_heights_is_edge (z, n, dx, i, pm->max_drive_grade))
         break;
       if ((gint) i >= i_f && V <= 0)
         break;

@@ -99,6 +99,12 @@ G_DEFINE_AUTOPTR_CLEANUP_FUNC (SfLane, sf_lane_free)
 /* Loose volume (m3) of the lane above `level` (per cell) over [i0, i1). */
 double sf_lane_volume_above (const SfLane *lane, const double *level, guint i0, guint i1);
 
+/* TRUE when the ground falls away ahead of cell i: over the next
+ * SF_EDGE_RUN_M it drops faster than `grade` on average (a crest, not a
+ * notch left by a cut). */
+#define SF_EDGE_RUN_M 2.0
+gboolean sf_heights_is_edge (const double *z, guint n, double dx_m, guint i, double grade);
+
 /* ---- one push cycle ------------------------------------------------------ */
 
 typedef enum {

@@ -49,7 +49,8 @@ gen_fill (GenCtx *g, double z_h, double x_f, double *cast)
       double x = g->x0 + (i + 0.5) * g->dx;
       double top = z_h - gm * (x - g->x_t);
       double face = g->z_fl_w + (x_f - x) * g->tan_r;
-      double s = MAX (g->base[i], MIN (top, face));
+      /* behind the highwall crest the ground is undisturbed */
+      double s = x <= 0 ? g->base[i] : MAX (g->base[i], MIN (top, face));
       g->surface[i] = s;
       double a = (s - g->base[i]) * g->dx;
       total += a;
@@ -294,7 +295,7 @@ roof_at (const SfBlockSection *bs, double x)
 double
 sf_block_section_spoil_line (const SfBlockSection *bs, double x)
 {
-  return bs->z_pivot_std_m + (bs->x_pivot_std_m - x) * bs->tan_repose;
+  return bs->z_pivot_std_m + (x - bs->x_pivot_std_m) * bs->tan_repose;
 }
 
 SfBlockSection *
@@ -375,27 +376,30 @@ sf_block_section_new (const SfScenario *sc, guint block, GError **error)
   sampled_clear (&a);
   sampled_clear (&b);
 
-  /* Standard pivot: the final spoil line, from the low-wall toe (edge + toe
-   * offset, on the coal roof) rising towards the highwall at the angle of
-   * repose, meets the dozer floor (coal roof + floor height). */
+  /* Standard pivot: the final spoil line rises from the low-wall toe (the
+   * far edge of this strip's coal + toe offset, on the coal roof) away from
+   * the highwall at the angle of repose; the pivot is where it meets the
+   * dozer floor (coal roof + floor height).  Spoil on the highwall side of
+   * that line lies where the next fleet must dig it again. */
   const SfDesign *d = &sc->design;
   const double x_q = bs->x_low_wall_edge_m + d->spoil_toe_offset_m;
   const double z_q = roof_at (bs, x_q);
-#define GAP(x) (z_q + (x_q - (x)) * bs->tan_repose - (roof_at (bs, (x)) + d->dozer_floor_above_coal_m))
-  double xa = bs->x_highwall_toe_m, xb = x_q;
-  if (!(GAP (xa) > 0) || !(GAP (xb) <= 0))
+  const double x_end = bs->x0_m + bs->n * bs->dx_m;
+#define GAP(x) (z_q + ((x) - x_q) * bs->tan_repose - (roof_at (bs, (x)) + d->dozer_floor_above_coal_m))
+  double xa = x_q, xb = x_end;
+  if (!(GAP (xa) < 0) || !(GAP (xb) >= 0))
     {
       g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_GEOMETRY,
-                   "block %u: the final spoil line from the low-wall toe at x = %.1f m never meets "
-                   "the dozer floor (%.1f m above coal) inside the strip; lower "
-                   "dozer_floor_above_coal_m or check the section",
-                   block, x_q, d->dozer_floor_above_coal_m);
+                   "block %u: the final spoil line from the low-wall toe at x = %.1f m does not "
+                   "meet the dozer floor (%.1f m above coal) inside the section (to x = %.1f m); "
+                   "extend section_x_max_m or lower dozer_floor_above_coal_m",
+                   block, x_q, d->dozer_floor_above_coal_m, x_end);
       return NULL;
     }
   for (int it = 0; it < BISECT_ITERS; it++)
     {
       double mid = 0.5 * (xa + xb);
-      if (GAP (mid) > 0)
+      if (GAP (mid) < 0)
         xa = mid;
       else
         xb = mid;

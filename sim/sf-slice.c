@@ -17,6 +17,8 @@
 #define SF_SLICE_DONE_SHARE 0.25
 /* Planning crest rule, the same as the push's dump edge. */
 #define SF_PLAN_EDGE_GRADE 0.45
+/* ... to at least this far below the slice target (m). */
+#define SF_EDGE_BELOW_TARGET_M 0.5
 /* Safety stop on pushes per slice per lane (a push that removes something
  * always progresses, so this is never reached on sane input). */
 #define SF_MAX_PUSHES_PER_SLICE 100000
@@ -54,34 +56,53 @@ sf_slice_plan_free (SfSlicePlan *plan)
 }
 
 guint
-sf_slice_cut_end (const SfSlice *s, const double *z, guint n, double tol_m)
+sf_slice_cut_end (const SfSlice *s, const double *z, guint limit, double tol_m)
 {
-  guint lim = MIN (s->i_limit, n - 1);
-  for (gint i = (gint) lim; i >= 0; i--)
+  for (gint i = (gint) limit; i >= 0; i--)
     if (z[i] > s->target[i] + tol_m)
       return (guint) i + 1;
   return 0;
 }
 
-/* First dump edge at or after cell i0: the next cell falls away steeper
- * than a drivable grade. */
+/* First dump edge at or after cell i0: the ground falls away steeper than a
+ * drivable grade to below the slice target (a face of uncut material falling
+ * onto the cut surface is not an edge). */
 static guint
-find_edge (const double *z, guint n, double dx, guint i0)
+find_edge (const double *z, const double *target, guint n, double dx, guint i0)
 {
+  const guint m = MAX (1u, (guint) lround (SF_EDGE_RUN_M / dx));
   for (guint i = i0; i + 1 < n; i++)
-    if ((z[i + 1] - z[i]) / dx < -SF_PLAN_EDGE_GRADE)
-      return i;
+    {
+      guint j = MIN (i + m, n - 1);
+      if (sf_heights_is_edge (z, n, dx, i, SF_PLAN_EDGE_GRADE)
+          && z[j] < target[j] - SF_EDGE_BELOW_TARGET_M)
+        return i;
+    }
   return n - 1;
 }
 
+guint
+sf_slice_limit (const SfSlice *s, const double *z, guint n, double dx_m)
+{
+  guint e = find_edge (z, s->target, n, dx_m, s->through_pivot ? s->i_pivot : s->i_from);
+  return MIN (e, s->i_bound > 0 ? s->i_bound - 1 : 0);
+}
+
+typedef struct {
+  guint n, i_from, i_pivot, i_bound;
+} SliceFrame;
+
 static SfSlice *
-slice_new (guint n, SfSliceKind kind, double grade, guint i_limit)
+slice_new (const SliceFrame *fr, SfSliceKind kind, double grade, gboolean through_pivot)
 {
   SfSlice *s = g_new0 (SfSlice, 1);
   s->kind = kind;
   s->grade = grade;
-  s->target = g_new (double, n);
-  s->i_limit = i_limit;
+  s->target = g_new (double, fr->n);
+  s->through_pivot = through_pivot;
+  s->i_from = fr->i_from;
+  s->i_pivot = fr->i_pivot;
+  s->i_bound = fr->i_bound;
   return s;
 }
 
@@ -92,7 +113,7 @@ plan_apply (SfSlice *s, const SfBlockSection *bs, double *z, double *before, dou
 {
   const guint n = bs->n;
   const double dx = bs->dx_m;
-  guint end = sf_slice_cut_end (s, z, n, SF_CUT_TOL_M);
+  guint end = sf_slice_cut_end (s, z, sf_slice_limit (s, z, n, dx), SF_CUT_TOL_M);
   double cx = 0, cz = 0;
   double area = sf_heights_area_between (z, s->target, 0, end, bs->x0_m, dx, &cx, &cz);
   s->cut_lcm = area * w;
@@ -103,7 +124,7 @@ plan_apply (SfSlice *s, const SfBlockSection *bs, double *z, double *before, dou
       z[i] = s->target[i];
   if (area <= 0)
     return;
-  guint crest = find_edge (z, n, dx, end > 0 ? end - 1 : 0);
+  guint crest = find_edge (z, s->target, n, dx, end > 0 ? end - 1 : 0);
   memcpy (before, z, n * sizeof (double));
   guint front = crest;
   double unfit = sf_heights_deposit_face (z, n, bs->x0_m, dx, crest, z[crest], bs->tan_repose,
@@ -137,8 +158,13 @@ sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_widt
   g_autofree double *before = g_new (double, n);
   const guint i_p = bs->i_pivot;
   const guint i_toe = (guint) CLAMP ((bs->x_highwall_toe_m - x0) / dx, 0, n - 1);
-  /* The crest of the blasted ground: the first dump edge past the pivot. */
-  const guint i_crest0 = MAX (find_edge (z, n, dx, i_p), i_p + 1);
+  SliceFrame fr = { n, i_toe, i_p, n };
+  for (guint i = i_p + 1; i < n; i++)
+    if (bs->surface[i] > bs->z_pivot_m + SF_CUT_TOL_M)
+      {
+        fr.i_bound = i;
+        break;
+      }
 
   /* The cut-off ramp through the pivot; beyond the pivot it keeps falling. */
   g_autofree double *ramp = g_new (double, n);
@@ -179,7 +205,7 @@ sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_widt
 
   if (d->strategy == SF_SLICES_TIPOVER_LAYERS)
     {
-      SfSlice *s0 = slice_new (n, SF_SLICE_TIPOVER, g_c, i_crest0);
+      SfSlice *s0 = slice_new (&fr, SF_SLICE_TIPOVER, g_c, FALSE);
       memcpy (s0->target, ramp, n * sizeof (double));
       g_ptr_array_add (plan->slices, s0);
       plan_apply (s0, bs, z, before, lane_width_m);
@@ -191,9 +217,9 @@ sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_widt
         {
           double level = bs->z_pivot_m + (z_top - bs->z_pivot_m) * (double) (d->layer_count - k)
                                              / (double) d->layer_count;
-          SfSlice *s = slice_new (n, SF_SLICE_LAYER, 0.0, i_p);
+          SfSlice *s = slice_new (&fr, SF_SLICE_LAYER, 0.0, TRUE);
           for (guint i = 0; i < n; i++)
-            s->target[i] = MAX (bs->floor[i], MIN (level, ramp[i]));
+            s->target[i] = i <= i_p ? MAX (bs->floor[i], MIN (level, ramp[i])) : bs->z_pivot_m;
           if (k == d->layer_count)
             for (guint i = 0; i <= i_p; i++)
               s->target[i] = bs->floor[i];
@@ -213,7 +239,7 @@ sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_widt
           double f = m > 1 ? (double) (k - 1) / (double) (m - 1) : 1.0;
           double g = g_c + (g_min - g_c) * f;
           double za = z_a1 + (z_an - z_a1) * f;
-          SfSlice *s = slice_new (n, SF_SLICE_STRAIGHT, g, i_crest0);
+          SfSlice *s = slice_new (&fr, SF_SLICE_STRAIGHT, g, k == m);
           for (guint i = 0; i < n; i++)
             {
               double x = x0 + (i + 0.5) * dx;
@@ -221,8 +247,8 @@ sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_widt
               s->target[i] = i <= i_p ? MAX (bs->floor[i], line) : MAX (bs->base[i], line);
             }
           if (k == m)
-            for (guint i = 0; i <= i_p; i++)
-              s->target[i] = bs->floor[i];
+            for (guint i = 0; i < n; i++)
+              s->target[i] = i <= i_p ? bs->floor[i] : bs->z_pivot_m;
           g_ptr_array_add (plan->slices, s);
           plan_apply (s, bs, z, before, lane_width_m);
         }
@@ -232,6 +258,24 @@ sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_widt
   return g_steal_pointer (&plan);
 }
 
+/* Material standing above the final design inside the dozing zone: left of
+ * the pivot above the last slice's target, and past the pivot (out to the
+ * tip-over limit `lim0`) above the tip-over target. */
+static double
+zone_excess_lcm (const SfLane *lane, const SfSlicePlan *plan, guint lim0)
+{
+  const SfSlice *s0 = g_ptr_array_index (plan->slices, 0);
+  const SfSlice *last = g_ptr_array_index (plan->slices, plan->slices->len - 1);
+  double v = 0;
+  for (guint i = 0; i <= lim0 && i < lane->n; i++)
+    {
+      double t = i <= last->i_pivot ? last->target[i] : s0->target[i];
+      if (lane->z[i] > t)
+        v += (lane->z[i] - t) * lane->dx_m * lane->width_m;
+    }
+  return v;
+}
+
 void
 sf_lane_work (const SfPushMachine *pm, SfLane *lane, const SfSlicePlan *plan,
               const SfFactors *factors, double swell, GArray *out, SfLaneTotals *totals,
@@ -239,29 +283,18 @@ sf_lane_work (const SfPushMachine *pm, SfLane *lane, const SfSlicePlan *plan,
 {
   const double fprod = sf_factors_product (factors);
   const double lcm2bcm = 1.0 / (1.0 + swell);
+  const guint n = lane->n;
   /* Loose volume of the lane: it must not change (every push conserves it). */
   double sum0 = 0;
-  for (guint i = 0; i < lane->n; i++)
+  for (guint i = 0; i < n; i++)
     sum0 += lane->z[i] - lane->base[i];
   memset (totals, 0, sizeof *totals);
-  const SfSlice *last = g_ptr_array_index (plan->slices, plan->slices->len - 1);
-  /* Planned: the material above the final targets inside the cut zones. */
-  {
-    double planned = 0;
-    const SfSlice *s0 = g_ptr_array_index (plan->slices, 0);
-    guint lim = s0->i_limit;
-    for (guint i = 0; i <= lim && i < lane->n; i++)
-      {
-        double t = last->target[i];
-        if (i > last->i_limit)
-          t = s0->target[i];
-        if (lane->z[i] > t)
-          planned += (lane->z[i] - t) * lane->dx_m * lane->width_m;
-      }
-    totals->planned_bcm = planned * lcm2bcm;
-  }
+  const SfSlice *s0 = g_ptr_array_index (plan->slices, 0);
+  const guint lim0 = MAX (sf_slice_limit (s0, lane->z, n, lane->dx_m), s0->i_pivot);
+  totals->planned_bcm = zone_excess_lcm (lane, plan, lim0) * lcm2bcm;
 
   const double done_lcm = SF_SLICE_DONE_SHARE * pm->blade_lcm;
+  const double progress_lcm = 0.01 * pm->blade_lcm;
   for (guint k = 0; k < plan->slices->len; k++)
     {
       const SfSlice *s = g_ptr_array_index (plan->slices, k);
@@ -270,6 +303,8 @@ sf_lane_work (const SfPushMachine *pm, SfLane *lane, const SfSlicePlan *plan,
       r.kind = sf_slice_kind_to_str (s->kind);
       r.end_reason = "done";
       double load_sum = 0, push_sum = 0, t_sum = 0;
+      double best_left = INFINITY;
+      guint since_best = 0;
       for (guint p = 0;; p++)
         {
           if (p >= SF_MAX_PUSHES_PER_SLICE)
@@ -277,7 +312,8 @@ sf_lane_work (const SfPushMachine *pm, SfLane *lane, const SfSlicePlan *plan,
               r.end_reason = "push limit";
               break;
             }
-          guint end = sf_slice_cut_end (s, lane->z, lane->n, SF_CUT_TOL_M);
+          guint limit = sf_slice_limit (s, lane->z, n, lane->dx_m);
+          guint end = sf_slice_cut_end (s, lane->z, limit, SF_CUT_TOL_M);
           SfPushResult pr;
           SfPushStatus st = sf_push_cycle (pm, lane, s->target, end, SF_CUT_TOL_M, done_lcm, &pr);
           if (st == SF_PUSH_NOTHING_LEFT)
@@ -303,6 +339,19 @@ sf_lane_work (const SfPushMachine *pm, SfLane *lane, const SfSlicePlan *plan,
               r.end_reason = "no dump room";
               break;
             }
+          /* Watchdog: material dropped where traction runs out can be pushed
+           * back and forth without ever reaching the dump. */
+          double left = sf_lane_volume_above (lane, s->target, 0, end);
+          if (left < best_left - progress_lcm)
+            {
+              best_left = left;
+              since_best = 0;
+            }
+          else if (++since_best > 200)
+            {
+              r.end_reason = "no progress";
+              break;
+            }
         }
       r.moved_bcm = r.deposited_lcm * lcm2bcm;
       r.operating_h = t_sum / 3600.0 / fprod;
@@ -324,22 +373,13 @@ sf_lane_work (const SfPushMachine *pm, SfLane *lane, const SfSlicePlan *plan,
   totals->bcm_per_operating_h = totals->operating_h > 0 ? totals->moved_bcm / totals->operating_h
                                                         : 0.0;
   totals->key_bcm = plan->key_lcm * lcm2bcm;
-
-  /* Left for the next fleet: what still stands above the final targets. */
-  {
-    double left = 0;
-    const SfSlice *s0 = g_ptr_array_index (plan->slices, 0);
-    for (guint i = 0; i <= s0->i_limit && i < lane->n; i++)
-      {
-        double t = i > last->i_limit ? s0->target[i] : last->target[i];
-        if (lane->z[i] > t)
-          left += (lane->z[i] - t) * lane->dx_m * lane->width_m;
-      }
-    totals->left_bcm = left * lcm2bcm;
-    totals->dropped_left_bcm = MAX (0.0, totals->planned_bcm - totals->moved_bcm - totals->left_bcm);
-  }
+  totals->left_bcm = zone_excess_lcm (lane, plan, lim0) * lcm2bcm;
+  /* What left the zone less what reached the dump net of rehandle: material
+   * dropped or spilled outside the zone on the way. */
+  totals->dropped_left_bcm
+    = totals->planned_bcm - totals->left_bcm - (totals->moved_bcm - totals->rehandled_bcm);
   double sum1 = 0;
-  for (guint i = 0; i < lane->n; i++)
+  for (guint i = 0; i < n; i++)
     sum1 += lane->z[i] - lane->base[i];
   totals->lane_volume_error = fabs (sum1 - sum0) / MAX (fabs (sum0), 1e-300);
 }

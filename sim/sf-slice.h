@@ -47,7 +47,16 @@ typedef struct {
   SfSliceKind kind;
   double grade;          /* design grade of the target line, fall towards the void (rise/run) */
   double *target;        /* n heights, owned */
-  guint i_limit;         /* the cut zone never reaches past this cell */
+  /* Cut zone, found again before every push: from the highwall to the
+   * current dump edge (sought from the highwall toe, or from the pivot for a
+   * slice pushed through the pivot: layers and the last straight slice, flat
+   * at the pivot level beyond it), but never onto ground that stood above
+   * the pivot level before dozing (the previous spoil).  Fill that earlier
+   * pushes left above the target inside it is cut again (rehandle). */
+  gboolean through_pivot;
+  guint i_from;          /* highwall toe cell: edges are sought from here */
+  guint i_pivot;
+  guint i_bound;         /* first cell past the pivot whose original ground stands above it */
   /* planned on the design sequence, per lane (loose m3) */
   double cut_lcm, fill_lcm;
   double cut_cx_m, cut_cz_m, fill_cx_m, fill_cz_m;
@@ -68,9 +77,12 @@ SfSlicePlan *sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, dou
 void sf_slice_plan_free (SfSlicePlan *plan);
 G_DEFINE_AUTOPTR_CLEANUP_FUNC (SfSlicePlan, sf_slice_plan_free)
 
-/* Cut-zone end for a slice on the current lane: one past the last cell at or
- * before slice->i_limit that stands more than tol above the target. */
-guint sf_slice_cut_end (const SfSlice *s, const double *z, guint n, double tol_m);
+/* Last cell the slice may cut on the current lane z (see SfSlice). */
+guint sf_slice_limit (const SfSlice *s, const double *z, guint n, double dx_m);
+
+/* Cut-zone end: one past the last cell at or before `limit` that stands more
+ * than tol above the target; 0 when none does. */
+guint sf_slice_cut_end (const SfSlice *s, const double *z, guint limit, double tol_m);
 
 /* Works one lane through every slice of the plan with one machine.  Appends
  * one SfSliceResult per slice to `out` (GArray of SfSliceResult) and fills
