@@ -745,17 +745,19 @@ check_point_string (Reader *r, const PointString *s, gboolean have_range, double
 
 /* The coal roof must not rise above the surface: checked at every vertex of
  * either string against the other (linear between vertices, so vertices are
- * where a crossing first shows).  One message names the first x in the
- * order checked and how many other vertices fail. */
+ * where a crossing first shows), up to x_upto (the low-wall edge: beyond it
+ * the previous strip's coal is mined and its floor lies below the roof).
+ * One message names the first x in the order checked and how many other
+ * vertices fail. */
 static void
-check_roof_below_surface (Reader *r, const GArray *surface, const GArray *roof)
+check_roof_below_surface (Reader *r, const GArray *surface, const GArray *roof, double x_upto)
 {
   const double tol_m = 1e-9;
   const SfPoint *s = (const SfPoint *)(void *)surface->data;
   const SfPoint *c = (const SfPoint *)(void *)roof->data;
   guint n_bad = 0;
   SfPoint bad_roof = { 0 }, bad_surf = { 0 };
-  for (guint i = 0; i < roof->len; i++)
+  for (guint i = 0; i < roof->len && c[i].x_m <= x_upto; i++)
     {
       double zs = sf_polyline_eval (s, surface->len, c[i].x_m);
       if (c[i].z_m > zs + tol_m && n_bad++ == 0)
@@ -764,7 +766,7 @@ check_roof_below_surface (Reader *r, const GArray *surface, const GArray *roof)
           bad_surf = (SfPoint){ c[i].x_m, zs };
         }
     }
-  for (guint i = 0; i < surface->len; i++)
+  for (guint i = 0; i < surface->len && s[i].x_m <= x_upto; i++)
     {
       double zc = sf_polyline_eval (c, roof->len, s[i].x_m);
       if (zc > s[i].z_m + tol_m && n_bad++ == 0)
@@ -1062,7 +1064,10 @@ finish_strings (Reader *r, const SfScenario *sc, const StripState *st, PointStri
     }
   if (surface->complete && surface->monotone && surface->pts->len >= 2 && roof->complete
       && roof->monotone && roof->pts->len >= 2)
-    check_roof_below_surface (r, surface->pts, roof->pts);
+    check_roof_below_surface (r, surface->pts, roof->pts,
+                              spec->low_wall_edge_x_m > spec->highwall_toe_x_m
+                                ? spec->low_wall_edge_x_m
+                                : INFINITY);
   spec->surface = g_steal_pointer (&surface->pts);
   spec->coal_roof = g_steal_pointer (&roof->pts);
 }
