@@ -153,6 +153,8 @@ sf_lane_new (const double *surface, const double *base, guint n, double x0_m, do
   l->base = base;
   l->dumped = g_new0 (double, n);
   l->scratch = g_new0 (double, n);
+  l->undo_z = g_new0 (double, n);
+  l->undo_dumped = g_new0 (double, n);
   l->tan_repose = tan_repose;
   return l;
 }
@@ -165,6 +167,8 @@ sf_lane_free (SfLane *lane)
   g_free (lane->z);
   g_free (lane->dumped);
   g_free (lane->scratch);
+  g_free (lane->undo_z);
+  g_free (lane->undo_dumped);
   g_free (lane);
 }
 
@@ -197,10 +201,15 @@ sf_heights_is_edge (const double *z, guint n, double dx_m, guint i, double grade
          && (z[i + 1] - z[i]) / dx_m < -grade;
 }
 
+/* Distance below the target at which ground ahead counts as a drop-off (m). */
+#define SF_DESIGN_EDGE_M 0.5
+
 SfPushStatus
-sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target, guint i_cut_end,
-               double tol_m, double min_volume_lcm, SfPushResult *res)
+sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const SfPushSpec *spec, SfPushResult *res)
 {
+  const double *target = spec->target;
+  guint i_cut_end = spec->i_cut_end;
+  const double tol_m = spec->tol_m, min_volume_lcm = spec->min_volume_lcm;
   memset (res, 0, sizeof *res);
   const guint n = lane->n;
   const double dx = lane->dx_m, w = lane->width_m, cell_area = dx * w;
@@ -240,6 +249,10 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target, guin
         break;
       i_s--;
     }
+
+  /* Keep what the push may change, in case its load finds no dump room. */
+  memcpy (lane->undo_z + i_s, z + i_s, (n - (guint) i_s) * sizeof (double));
+  memcpy (lane->undo_dumped + i_s, lane->dumped + i_s, (n - (guint) i_s) * sizeof (double));
 
   /* Load and carry. */
   double V = 0, t_load = 0, t_carry = 0, grade_sum = 0;
@@ -306,7 +319,9 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target, guin
       /* Dump edge ahead, end of profile, or nothing left on the blade. */
       if (i + 1 >= n)
         break;
-      if ((gint) i >= i_f && sf_heights_is_edge (z, n, dx, i, pm->max_drive_grade))
+      if ((gint) i >= i_f
+          && (spec->dump_at_design ? z[i + 1] < target[i + 1] - SF_DESIGN_EDGE_M
+                                   : sf_heights_is_edge (z, n, dx, i, pm->max_drive_grade)))
         break;
       if ((gint) i >= i_f && V <= 0)
         break;
@@ -322,17 +337,26 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target, guin
       double unfit = sf_heights_deposit_face (z, n, lane->x0_m, dx, i_c, z[i_c], lane->tan_repose,
                                               V / w, &i_front);
       for (guint j = from; j <= i_front && j < n; j++)
-        lane->dumped[j] += z[j] - lane->scratch[j];
-      double placed = V - unfit * w;
-      res->deposited_lcm = placed;
+        {
+          lane->dumped[j] += z[j] - lane->scratch[j];
+          if (lane->spoil_line)
+            res->over_spoil_lcm
+              += MAX (0.0, z[j] - MAX (lane->scratch[j], lane->spoil_line[j])) * cell_area;
+        }
       if (unfit > 0)
         {
-          /* No room before the end of the profile: it stays at the edge. */
-          res->unplaced_lcm = unfit * w;
-          res->dropped_lcm += unfit * w;
-          z[i_c] += unfit * w / cell_area;
-          dirty_hi = MAX (dirty_hi, i_c + 2);
+          /* No room beyond the edge: an operator would not make this push. */
+          double lost = unfit * w;
+          memcpy (z + i_s, lane->undo_z + i_s, (n - (guint) i_s) * sizeof (double));
+          memcpy (lane->dumped + i_s, lane->undo_dumped + i_s,
+                  (n - (guint) i_s) * sizeof (double));
+          memset (res, 0, sizeof *res);
+          res->unplaced_lcm = lost;
+          res->x_start_m = lane->x0_m + i_s * dx;
+          res->x_dump_m = lane->x0_m + (i_c + 1) * dx;
+          return SF_PUSH_NO_ROOM;
         }
+      res->deposited_lcm = V;
       dirty_hi = MAX (dirty_hi, i_front + 2);
     }
 
@@ -364,8 +388,6 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target, guin
   res->t_cycle_s = pm->fixed_time_s + t_load + t_carry + t_ret;
 
   if (res->removed_lcm <= 0)
-    return SF_PUSH_STALLED;
-  if (res->unplaced_lcm > 0 && res->deposited_lcm <= 0)
     return SF_PUSH_STALLED;
   return SF_PUSH_DONE;
 }

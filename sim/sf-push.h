@@ -88,7 +88,12 @@ typedef struct {
   const double *base;    /* non-erodible ground, borrowed from the block section */
   double *dumped;        /* thickness of dumped fill on each cell (for rehandle), owned */
   double *scratch;       /* n doubles of working space, owned */
+  double *undo_z, *undo_dumped; /* n doubles each: the lane before a push, owned */
   double tan_repose;
+  const double *spoil_line; /* final spoil line of the standard design, n heights, borrowed;
+                               NULL = not counted.  Dump fill above it lies on the highwall
+                               side of the line, in the next fleet's digging (dragline
+                               rehandle). */
 } SfLane;
 
 SfLane *sf_lane_new (const double *surface, const double *base, guint n, double x0_m,
@@ -111,6 +116,8 @@ typedef enum {
   SF_PUSH_DONE = 0,      /* a push was made */
   SF_PUSH_NOTHING_LEFT,  /* the cut zone holds less than the completion threshold */
   SF_PUSH_STALLED,       /* the machine cannot cut or keep any load here */
+  SF_PUSH_NO_ROOM,       /* the load would not fit beyond the dump edge: the push
+                            is not made and the lane is left as it was */
 } SfPushStatus;
 
 typedef struct {
@@ -120,7 +127,8 @@ typedef struct {
   double dropped_lcm;    /* left on the path where traction ran out */
   double spilled_lcm;    /* lost to the sides along the path */
   double rehandled_lcm;  /* part of removed that earlier pushes had dumped */
-  double unplaced_lcm;   /* part of deposited with no room before the profile end */
+  double over_spoil_lcm; /* part of deposited lying above (highwall side of) the spoil line */
+  double unplaced_lcm;   /* load that found no room beyond the dump edge (NO_ROOM) */
   double peak_load_lcm;
   /* distances, m */
   double x_start_m, x_cut_end_m, x_dump_m;
@@ -130,15 +138,23 @@ typedef struct {
   double t_fixed_s, t_load_s, t_carry_s, t_return_s, t_cycle_s;
 } SfPushResult;
 
-/* Makes one push on `lane` towards the slice `target` (n heights).  The cut
- * zone is the cells [0, i_cut_end) standing more than `tol_m` above target.
- * The push starts far enough back from the front of the cut zone to fill the
- * blade, cuts forward, carries to the dump edge and dumps; the dozer then
- * reverses to the start point.  `min_volume_lcm` is the completion
- * threshold.  Conservation holds for every push:
+/* What one push works towards. */
+typedef struct {
+  const double *target;   /* n heights: the slice's target surface */
+  guint i_cut_end;        /* the cut zone is cells [0, i_cut_end) ... */
+  double tol_m;           /* ... standing more than tol_m above target */
+  double min_volume_lcm;  /* completion threshold of the cut zone */
+  gboolean dump_at_design;/* dump where the ground ahead falls below the target
+                             (a pad built up to the target level, e.g. the pivot
+                             level); otherwise at a crest steeper than drivable */
+} SfPushSpec;
+
+/* Makes one push on `lane`.  The push starts far enough back from the front
+ * of the cut zone to fill the blade, cuts to grade going forward, carries to
+ * the dump edge and dumps; the dozer then reverses to the start point.
+ * Conservation holds for every push:
  *   removed = deposited + dropped + spilled    (to rounding). */
-SfPushStatus sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const double *target,
-                            guint i_cut_end, double tol_m, double min_volume_lcm,
+SfPushStatus sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const SfPushSpec *spec,
                             SfPushResult *res);
 
 /* ---- the handbook method (cross-check) ------------------------------------ */

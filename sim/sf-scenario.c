@@ -1838,3 +1838,22 @@ sf_scenario_load_from_file (const char *path, GError **error)
   g_autofree char *dir = g_path_get_dirname (path);
   return load_text (text, len, path, strcmp (dir, ".") ? dir : NULL, error);
 }
+
+const char *
+sf_scenario_get_class_blade (const SfScenario *sc, guint class_index)
+{
+  g_return_val_if_fail (sc != NULL && class_index < sc->classes->len, NULL);
+  const SfDozerClass *c = g_ptr_array_index (sc->classes, class_index);
+  switch (c->blade_type)
+    {
+    case SF_BLADE_STRAIGHT:
+      return "straight";
+    case SF_BLADE_SEMI_U:
+      return "semi-u";
+    case SF_BLADE_U:
+      return "u";
+    case SF_BLADE_CARRY:
+      return "carry";
+    }
+  return "?";
+}

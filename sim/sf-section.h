@@ -50,8 +50,9 @@ G_DEFINE_AUTOPTR_CLEANUP_FUNC (SfBlockSection, sf_block_section_free)
 
 /* The final spoil line of the standard design at x: through the low-wall toe
  * (low-wall edge + toe offset, on the coal roof) and the standard pivot,
- * rising away from the highwall at the angle of repose.  Dozed spoil below
- * it lies in the next fleet's digging and is counted as rehandle. */
+ * rising away from the highwall at the angle of repose.  Dozed spoil above
+ * it (on its highwall side) lies in the next fleet's digging and is counted
+ * as rehandle. */
 double sf_block_section_spoil_line (const SfBlockSection *bs, double x);
 
 /* Generates the post-blast surface, base and coal roof of a parametric

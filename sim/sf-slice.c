@@ -106,6 +106,21 @@ slice_new (const SliceFrame *fr, SfSliceKind kind, double grade, gboolean throug
   return s;
 }
 
+/* The far side of the slice's fill: past the pivot, beyond any ground that
+ * the slice still cuts, the void under the target ends where the ground
+ * that stood there before dozing (the previous spoil) rises above the
+ * target.  The cut zone never reaches it. */
+static void
+slice_bound (SfSlice *s, const SfBlockSection *bs)
+{
+  guint i = s->i_pivot + 1;
+  while (i < bs->n && bs->surface[i] > s->target[i] + SF_CUT_TOL_M)
+    i++;
+  while (i < bs->n && bs->surface[i] <= s->target[i] + SF_CUT_TOL_M)
+    i++;
+  s->i_bound = i;
+}
+
 /* Applies a slice to the planning surface z: cuts to target, dumps the cut at
  * the crest, and records volumes, centroids and push distance. */
 static void
@@ -159,10 +174,13 @@ sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_widt
   const guint i_p = bs->i_pivot;
   const guint i_toe = (guint) CLAMP ((bs->x_highwall_toe_m - x0) / dx, 0, n - 1);
   SliceFrame fr = { n, i_toe, i_p, n };
+  /* Where ground first stands above the pivot level past the pivot (the far
+   * end of straight lines). */
+  guint i_far = n - 1;
   for (guint i = i_p + 1; i < n; i++)
     if (bs->surface[i] > bs->z_pivot_m + SF_CUT_TOL_M)
       {
-        fr.i_bound = i;
+        i_far = i;
         break;
       }
 
@@ -207,6 +225,7 @@ sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_widt
     {
       SfSlice *s0 = slice_new (&fr, SF_SLICE_TIPOVER, g_c, FALSE);
       memcpy (s0->target, ramp, n * sizeof (double));
+      slice_bound (s0, bs);
       g_ptr_array_add (plan->slices, s0);
       plan_apply (s0, bs, z, before, lane_width_m);
       /* Layers: from the highest ground left on the ramp down to the pivot. */
@@ -223,32 +242,53 @@ sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_widt
           if (k == d->layer_count)
             for (guint i = 0; i <= i_p; i++)
               s->target[i] = bs->floor[i];
+          slice_bound (s, bs);
           g_ptr_array_add (plan->slices, s);
           plan_apply (s, bs, z, before, lane_width_m);
         }
     }
   else
     {
+      /* Straight lines rotating slice by slice: the cut end (at the highwall
+       * toe) drops from the top of the ground to the dozer floor while the
+       * fill end (at the far side of the void, where ground first stands above
+       * the pivot level) rises from the bottom of the void to the pivot level.
+       * The pivot of each line (where it crosses the ground) so moves towards
+       * the highwall as the strip is worked.  No line is flatter than the
+       * flattest push grade (min_push_grade_pct) until the last slice, which
+       * is the final design: the floor, then the pivot level. */
       const double g_min = d->min_push_grade_pct / 100.0;
-      const double x_toe = x0 + (i_toe + 0.5) * dx;
-      const double z_a1 = bs->z_pivot_m + g_c * (bs->x_pivot_m - x_toe);
-      const double z_an = bs->floor[i_toe];
+      const double x_a = x0 + (i_toe + 0.5) * dx;
+      const guint i_b = i_far > i_p + 1 ? i_far - 1 : MIN (i_p + 1, n - 1);
+      const double x_b = x0 + (i_b + 0.5) * dx;
+      double z_top = bs->floor[i_toe], z_bot = bs->z_pivot_m;
+      for (guint i = i_toe; i <= i_p; i++)
+        z_top = MAX (z_top, bs->surface[i]);
+      for (guint i = i_p; i <= i_b; i++)
+        z_bot = MIN (z_bot, bs->surface[i]);
       const guint m = d->straight_count;
       for (guint k = 1; k <= m; k++)
         {
-          double f = m > 1 ? (double) (k - 1) / (double) (m - 1) : 1.0;
-          double g = g_c + (g_min - g_c) * f;
-          double za = z_a1 + (z_an - z_a1) * f;
+          double f = (double) k / (double) m;
+          double za = z_top + (bs->floor[i_toe] - z_top) * f;
+          double zb = z_bot + (bs->z_pivot_m - z_bot) * f;
+          double g = (za - zb) / MAX (x_b - x_a, dx);
+          if (k < m && g < g_min)
+            {
+              g = g_min;
+              zb = za - g * (x_b - x_a);
+            }
           SfSlice *s = slice_new (&fr, SF_SLICE_STRAIGHT, g, k == m);
           for (guint i = 0; i < n; i++)
             {
               double x = x0 + (i + 0.5) * dx;
-              double line = za - g * (x - x_toe);
+              double line = za - g * (x - x_a);
               s->target[i] = i <= i_p ? MAX (bs->floor[i], line) : MAX (bs->base[i], line);
             }
           if (k == m)
             for (guint i = 0; i < n; i++)
               s->target[i] = i <= i_p ? bs->floor[i] : bs->z_pivot_m;
+          slice_bound (s, bs);
           g_ptr_array_add (plan->slices, s);
           plan_apply (s, bs, z, before, lane_width_m);
         }
@@ -315,12 +355,19 @@ sf_lane_work (const SfPushMachine *pm, SfLane *lane, const SfSlicePlan *plan,
           guint limit = sf_slice_limit (s, lane->z, n, lane->dx_m);
           guint end = sf_slice_cut_end (s, lane->z, limit, SF_CUT_TOL_M);
           SfPushResult pr;
-          SfPushStatus st = sf_push_cycle (pm, lane, s->target, end, SF_CUT_TOL_M, done_lcm, &pr);
+          SfPushSpec spec = { s->target, end, SF_CUT_TOL_M, done_lcm,
+                              s->through_pivot || s->kind == SF_SLICE_STRAIGHT };
+          SfPushStatus st = sf_push_cycle (pm, lane, &spec, &pr);
           if (st == SF_PUSH_NOTHING_LEFT)
             break;
           if (st == SF_PUSH_STALLED)
             {
-              r.end_reason = pr.unplaced_lcm > 0 ? "no dump room" : "cannot cut";
+              r.end_reason = "cannot cut";
+              break;
+            }
+          if (st == SF_PUSH_NO_ROOM)
+            {
+              r.end_reason = "no dump room";
               break;
             }
           if (push_cb)
@@ -331,14 +378,10 @@ sf_lane_work (const SfPushMachine *pm, SfLane *lane, const SfSlicePlan *plan,
           r.dropped_lcm += pr.dropped_lcm;
           r.spilled_lcm += pr.spilled_lcm;
           r.rehandled_lcm += pr.rehandled_lcm;
+          r.over_spoil_lcm += pr.over_spoil_lcm;
           load_sum += pr.deposited_lcm;
           push_sum += pr.x_dump_m - pr.x_start_m;
           t_sum += pr.t_cycle_s;
-          if (pr.unplaced_lcm > 0)
-            {
-              r.end_reason = "no dump room";
-              break;
-            }
           /* Watchdog: material dropped where traction runs out can be pushed
            * back and forth without ever reaching the dump. */
           double left = sf_lane_volume_above (lane, s->target, 0, end);
@@ -366,18 +409,19 @@ sf_lane_work (const SfPushMachine *pm, SfLane *lane, const SfSlicePlan *plan,
       totals->pushes += r.pushes;
       totals->moved_bcm += r.moved_bcm;
       totals->rehandled_bcm += r.rehandled_lcm * lcm2bcm;
+      totals->over_spoil_bcm += r.over_spoil_lcm * lcm2bcm;
       totals->operating_h += r.operating_h;
-      if (g_strcmp0 (r.end_reason, "done") != 0)
+      /* A slice that ran out of dump room hands over to the next, whose fill
+       * reaches higher; the last one, or one that cannot cut, ends the lane. */
+      if (g_strcmp0 (r.end_reason, "done") != 0
+          && (g_strcmp0 (r.end_reason, "no dump room") != 0 || s->through_pivot))
         break;
     }
   totals->bcm_per_operating_h = totals->operating_h > 0 ? totals->moved_bcm / totals->operating_h
                                                         : 0.0;
   totals->key_bcm = plan->key_lcm * lcm2bcm;
   totals->left_bcm = zone_excess_lcm (lane, plan, lim0) * lcm2bcm;
-  /* What left the zone less what reached the dump net of rehandle: material
-   * dropped or spilled outside the zone on the way. */
-  totals->dropped_left_bcm
-    = totals->planned_bcm - totals->left_bcm - (totals->moved_bcm - totals->rehandled_bcm);
+  totals->uncovered_bcm = totals->planned_bcm - totals->left_bcm;
   double sum1 = 0;
   for (guint i = 0; i < n; i++)
     sum1 += lane->z[i] - lane->base[i];

@@ -112,6 +112,10 @@ sf_study_push_lane (const SfScenario *sc, guint block, guint lane, guint class_i
   sf_push_machine_init (&pm, c, &sc->material, &d);
   g_autoptr (SfLane) ln = sf_lane_new (bs->surface, bs->base, bs->n, bs->x0_m, bs->dx_m,
                                        sc->strip.lane_width_m, bs->tan_repose);
+  g_autofree double *spoil = g_new (double, bs->n);
+  for (guint i = 0; i < bs->n; i++)
+    spoil[i] = sf_block_section_spoil_line (bs, bs->x0_m + (i + 0.5) * bs->dx_m);
+  ln->spoil_line = spoil;
   GArray *out = g_array_new (FALSE, TRUE, sizeof (SfSliceResult));
   sf_lane_work (&pm, ln, plan, &sc->factors, sc->material.swell, out, totals, NULL, NULL);
   return out;

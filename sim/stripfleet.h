@@ -72,6 +72,8 @@ guint sf_scenario_get_n_classes (const SfScenario *sc);
 const char *sf_scenario_get_class_name (const SfScenario *sc, guint class_index);
 /* Index of the class named `name`, or -1. */
 int sf_scenario_find_class (const SfScenario *sc, const char *name);
+/* Blade type of a class: "straight", "semi-u", "u" or "carry" (static). */
+const char *sf_scenario_get_class_blade (const SfScenario *sc, guint class_index);
 
 /* ---- block studies: slice plans and one lane pushed out -------------------- */
 
@@ -101,6 +103,7 @@ typedef struct {
   const char *kind;
   guint pushes;
   double removed_lcm, deposited_lcm, dropped_lcm, spilled_lcm, rehandled_lcm;
+  double over_spoil_lcm;    /* dumped on the highwall side of the standard final spoil line (dragline rehandle) */
   double moved_bcm;          /* deposited at the dump front, bank m3 */
   double operating_h;        /* sum of cycle times / production factors */
   double bcm_per_operating_h;
@@ -113,7 +116,12 @@ typedef struct {
 typedef struct {
   guint pushes;
   double planned_bcm;        /* above the final target in the cut zones at the start */
-  double moved_bcm, dropped_left_bcm, left_bcm, rehandled_bcm, key_bcm;
+  double moved_bcm;          /* dumped at the dump front (gross, rehandle included) */
+  double uncovered_bcm;      /* planned - left: net taken out of the dozing zone */
+  double left_bcm;           /* still above the final design in the zone at the end */
+  double rehandled_bcm;      /* dumped fill cut again by later pushes */
+  double key_bcm;            /* left under a lifted pivot's ramp */
+  double over_spoil_bcm;    /* dumped where the next fleet digs: dragline rehandle */
   double operating_h, bcm_per_operating_h;
   double lane_volume_error;  /* relative change of the lane's total loose volume */
 } SfLaneTotals;

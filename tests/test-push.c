@@ -244,8 +244,8 @@ test_push_conservation_and_repose (void **state)
   guint pushes = 0;
   SfPushResult r;
   SfPushStatus st;
-  while ((st = sf_push_cycle (&pm, l, target, i_cut_end, 0.02, 0.25 * pm.blade_lcm, &r))
-         == SF_PUSH_DONE)
+  SfPushSpec spec = { target, i_cut_end, 0.02, 0.25 * pm.blade_lcm, FALSE };
+  while ((st = sf_push_cycle (&pm, l, &spec, &r)) == SF_PUSH_DONE)
     {
       pushes++;
       double out = r.deposited_lcm + r.dropped_lcm + r.spilled_lcm;
@@ -278,10 +278,11 @@ test_push_distance_grows (void **state)
   double *base, *target;
   g_autoptr (SfLane) l = test_lane (&base, &target);
   SfPushResult first, r;
-  assert_int_equal (sf_push_cycle (&pm, l, target, 120, 0.02, 10.0, &first), SF_PUSH_DONE);
+  SfPushSpec spec = { target, 120, 0.02, 10.0, FALSE };
+  assert_int_equal (sf_push_cycle (&pm, l, &spec, &first), SF_PUSH_DONE);
   assert_true (first.deposited_lcm <= 37.5784);
   double last_push = 0;
-  while (sf_push_cycle (&pm, l, target, 120, 0.02, 10.0, &r) == SF_PUSH_DONE)
+  while (sf_push_cycle (&pm, l, &spec, &r) == SF_PUSH_DONE)
     last_push = r.x_dump_m - r.x_start_m;
   assert_true (last_push > first.x_dump_m - first.x_start_m + 10.0);
   g_free (base);
@@ -307,7 +308,8 @@ test_push_stalls_uphill (void **state)
     }
   g_autoptr (SfLane) l = sf_lane_new (z, base, TN, 0, TDX, 6.0, 10.0);
   SfPushResult r;
-  assert_int_equal (sf_push_cycle (&pm, l, target, 40, 0.02, 1.0, &r), SF_PUSH_STALLED);
+  SfPushSpec spec = { target, 40, 0.02, 1.0, FALSE };
+  assert_int_equal (sf_push_cycle (&pm, l, &spec, &r), SF_PUSH_STALLED);
   sf_assert_close (r.removed_lcm, 0.0, 1e-12, 0);
 }
 
@@ -321,7 +323,8 @@ test_push_nothing_left (void **state)
   double base[TN] = { 0 }, target[TN] = { 0 };
   g_autoptr (SfLane) l = sf_lane_new (base, base, TN, 0, TDX, 6.0, 0.75);
   SfPushResult r;
-  assert_int_equal (sf_push_cycle (&pm, l, target, TN, 0.02, 1.0, &r), SF_PUSH_NOTHING_LEFT);
+  SfPushSpec spec = { target, TN, 0.02, 1.0, FALSE };
+  assert_int_equal (sf_push_cycle (&pm, l, &spec, &r), SF_PUSH_NOTHING_LEFT);
 }
 
 int
