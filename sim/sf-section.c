@@ -375,6 +375,10 @@ sf_block_section_new (const SfScenario *sc, guint block, GError **error)
     }
   sampled_clear (&a);
   sampled_clear (&b);
+  /* Loose ground cannot stand steeper than its angle of repose: surveyed or
+   * interpolated strings that do (by survey roughness, say) settle first. */
+  sf_heights_relax (bs->surface, bs->base, bs->n, bs->dx_m, bs->tan_repose, 0, bs->n, 1e-9, NULL,
+                    NULL);
 
   /* Standard pivot: the final spoil line rises from the low-wall toe (the
    * far edge of this strip's coal + toe offset, on the coal roof) away from
