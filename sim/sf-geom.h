@@ -35,14 +35,16 @@ double sf_poly_area (const SfPoint *p, gsize n);
 gboolean sf_poly_centroid (const SfPoint *p, gsize n, SfPoint *centroid, double *area);
 
 /* TRUE when two non-adjacent segments of the open polyline p[0..n-1] cross or
- * touch; *seg_a and *seg_b (may be NULL) receive the first offending pair. */
+ * touch, or when a segment doubles back along its neighbour; *seg_a and
+ * *seg_b (may be NULL) receive the first offending pair (smallest *seg_a,
+ * then smallest *seg_b; *seg_a < *seg_b).  Exact predicates. */
 gboolean sf_polyline_self_intersects (const SfPoint *p, gsize n, gsize *seg_a, gsize *seg_b);
 
 /* The same for the closed polygon (the closing segment n-1 -> 0 included). */
 gboolean sf_polygon_self_intersects (const SfPoint *p, gsize n, gsize *seg_a, gsize *seg_b);
 
 /* z at x on an x-monotone polyline (x strictly increasing), linear between
- * vertices, held constant beyond either end. */
+ * vertices, held constant beyond either end (n = 0 gives 0). */
 double sf_polyline_eval (const SfPoint *p, gsize n, double x);
 
 /* Exact integral of that polyline over [xa, xb] (xa < xb), constant
@@ -90,21 +92,29 @@ double sf_heights_area_between (const double *upper, const double *lower, guint 
  * only, never below base[] (the non-erodible ground: in-situ rock, coal; NULL
  * means everything is loose).  Only the window [i0, i1) that was disturbed is
  * examined at first; the window grows as material moves.  The total of z is
- * conserved to rounding.  Returns the number of cell pairs adjusted.
- * *touched_lo / *touched_hi (may be NULL) receive the changed range
- * [lo, hi). */
+ * conserved to rounding.  tol_m below 1e-9 m is taken as 1e-9 m.  Returns the
+ * number of pair adjustments (a pair adjusted twice counts twice; 0 means
+ * nothing moved).  *touched_lo / *touched_hi (may be NULL) receive the
+ * changed range [lo, hi) (empty, lo = hi, when nothing moved). */
 guint sf_heights_relax (double *z, const double *base, guint n, double dx_m, double tan_repose,
                         guint i0, guint i1, double tol_m, guint *touched_lo, guint *touched_hi);
 
 /* Deposits `area_m2` of section area at a dump front: the material leaves the
  * blade at cell i_crest at level z_top_m and runs down ahead of it, so the new
  * surface beyond the crest is max(z_old, min(z_top, z_top - (x - x_f) tan))
- * for a front position x_f chosen so that exactly area_m2 is added (the pile
- * is built at the angle of repose directly, no iteration over the whole
- * profile).  Cells i_crest+1 .. n-1 may change; cell i_crest is raised to
- * z_top first if it is lower.  Returns the area that did not fit before the
- * end of the profile (0 when all fitted).  *i_front receives the last cell
- * changed. */
+ * (x at cell centres) for a front position x_f chosen so that exactly area_m2
+ * is added (the pile is built at the angle of repose directly, no iteration
+ * over the whole profile).  Cell i_crest is raised to z_top first if it is
+ * lower.  The face runs from the crest to its toe, the first cell whose old
+ * surface is at or above the face line; cells beyond the toe keep their
+ * surface (the face does not reach behind ground that stands in its way), so
+ * only cells i_crest .. *i_front change and the cost follows them.  A cell at
+ * or above z_top stops the face for good.  When the face just tops a rise and
+ * the rest of the area is less than the dip behind it would take under the
+ * line, that dip is filled part way, in proportion.  Returns the area that did
+ * not fit before the end of the profile or a cell at or above z_top (0 when
+ * all fitted; area_m2 <= 0 changes nothing).  *i_front receives the last
+ * cell changed (i_crest when none beyond it). */
 double sf_heights_deposit_face (double *z, guint n, double x0_m, double dx_m, guint i_crest,
                                 double z_top_m, double tan_repose, double area_m2, guint *i_front);
 
