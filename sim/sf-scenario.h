@@ -45,6 +45,32 @@ typedef enum {
   SF_BLADE_CARRY,
 } SfBladeType;
 
+/* A random duration or interval.  Parameters are in the unit of the field
+ * that holds the distribution (hours or minutes, named there). */
+typedef enum {
+  SF_DIST_FIXED = 0,            /* always `mean` */
+  SF_DIST_EXPONENTIAL,          /* mean */
+  SF_DIST_WEIBULL,              /* shape k, scale lambda: mean = lambda Gamma(1 + 1/k) */
+  SF_DIST_LOGNORMAL,            /* mean and sd of the variable itself (not of its log) */
+} SfDistKind;
+
+typedef struct {
+  SfDistKind kind;
+  double mean;                  /* FIXED, EXPONENTIAL, LOGNORMAL */
+  double sd;                    /* LOGNORMAL */
+  double shape, scale;          /* WEIBULL */
+} SfDist;
+
+/* Breakdowns and maintenance of one dozer class (docs/model.md §8). */
+typedef struct {
+  gboolean failures;            /* FALSE: the class never breaks down */
+  SfDist tbf_h;                 /* engine hours between failures */
+  SfDist ttr_h;                 /* hours a fitter works on a repair */
+  double service_interval_h;    /* engine hours between planned services; 0 = none */
+  double service_h;             /* hours of a planned service */
+  double refuel_min;            /* refuelling once a shift; 0 = none */
+} SfReliability;
+
 typedef struct {
   char *name;
   double operating_mass_t;      /* machine with blade, operating */
@@ -66,6 +92,7 @@ typedef struct {
   double fixed_time_min;        /* manoeuvre and gear-change time per cycle */
   double traction_coefficient;  /* track-ground coefficient of traction */
   double cost_per_operating_h;  /* owning and operating cost, currency/h; 0 = not given */
+  SfReliability reliability;
 } SfDozerClass;
 
 typedef struct {
@@ -158,6 +185,59 @@ typedef struct {
   guint count;
 } SfFleetEntry;
 
+/* ---- time: calendar, roster, blasts (docs/model.md §7) -------------------- */
+
+#define SF_MAX_SHIFTS 4
+#define SF_MAX_CREWS 12
+#define SF_MAX_PATTERN_DAYS 366
+#define SF_NO_CREW 255
+
+typedef struct {
+  char *name;
+  guint start_min;              /* minutes after local midnight */
+  double hours;                 /* length; the shifts of a day tile 24 h exactly */
+  gboolean night;               /* the night-shift factor applies */
+} SfShift;
+
+typedef struct {
+  char *name;
+  guint operators;              /* dozers beyond this stand unmanned on the crew's shifts */
+  double skill;                 /* production multiplier of the crew, (0, 1.5] */
+} SfCrew;
+
+typedef struct {
+  guint n_shifts;
+  SfShift shifts[SF_MAX_SHIFTS];   /* in order of start time within the day */
+  guint n_crews;
+  SfCrew crews[SF_MAX_CREWS];
+  guint pattern_days;              /* length of the repeating pattern, days */
+  guint8 *pattern;                 /* pattern_days x n_shifts crew indices, SF_NO_CREW = nobody */
+  double shift_change_min;         /* lost at the start of every shift */
+  double meal_min;                 /* one meal break a shift ... */
+  double meal_after_h;             /* ... starting this long after the shift starts */
+  gboolean hot_seat;               /* relief operators: no machine stops for meals */
+  double night_factor;             /* production multiplier on night shifts */
+  double wet_day_probability;      /* chance that a day has a wet-weather stop */
+  SfDist wet_stop_h;               /* length of a wet-weather stop, hours */
+} SfRoster;
+
+typedef enum {
+  SF_DISPATCH_FINISH_BLOCK = 0,    /* fill the lowest open block first */
+  SF_DISPATCH_SPREAD,              /* send each dozer to the open block with fewest dozers */
+} SfDispatch;
+
+typedef struct {
+  GDateTime *start;                /* run start, local time with offset; owned (unref) */
+  guint64 seed;
+  double horizon_days;             /* watchdog on simulated time */
+  SfDispatch dispatch;
+  guint min_separation_lanes;      /* free lanes kept between dozers in one block */
+  guint max_slice_lead;            /* neighbouring lanes may differ by at most this many slices */
+  double tram_speed_kmh;
+  guint fitters;                   /* maintenance crew: repairs at once */
+  double *blast_h;                 /* per block: hours after start when it becomes workable */
+} SfSimulation;
+
 struct _SfScenario {
   char *path;                   /* file it was read from, for messages */
   char *name;
@@ -170,7 +250,14 @@ struct _SfScenario {
   SfDesign design;
   SfFactors factors;
   double coal_density_t_per_m3; /* 0 = not given */
+  SfRoster roster;              /* default: one crew, one 24 h shift, enough operators, no stops */
+  SfSimulation sim;             /* default: see sf_simulation_defaults */
 };
+
+void sf_roster_defaults (SfRoster *r, guint n_dozers);
+void sf_simulation_defaults (SfSimulation *s, guint n_blocks);
+void sf_roster_clear (SfRoster *r);
+void sf_simulation_clear (SfSimulation *s);
 
 /* Defaults used by the loader and by tests that build scenarios in code. */
 void sf_material_defaults (SfMaterial *m);

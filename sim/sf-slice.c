@@ -298,22 +298,128 @@ sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_widt
   return g_steal_pointer (&plan);
 }
 
-/* Material standing above the final design inside the dozing zone: left of
- * the pivot above the last slice's target, and past the pivot (out to the
- * tip-over limit `lim0`) above the tip-over target. */
-static double
-zone_excess_lcm (const SfLane *lane, const SfSlicePlan *plan, guint lim0)
+/* The final design inside the dozing zone: left of the pivot the last
+ * slice's target, past the pivot (out to the tip-over limit) the tip-over
+ * target; beyond the zone +inf. */
+void
+sf_slice_plan_final (const SfSlicePlan *plan, guint lim0, double *final, guint n)
 {
   const SfSlice *s0 = g_ptr_array_index (plan->slices, 0);
   const SfSlice *last = g_ptr_array_index (plan->slices, plan->slices->len - 1);
-  double v = 0;
-  for (guint i = 0; i <= lim0 && i < lane->n; i++)
+  for (guint i = 0; i < n; i++)
+    final[i] = i > lim0 ? INFINITY : i <= last->i_pivot ? last->target[i] : s0->target[i];
+}
+
+guint
+sf_slice_plan_zone_end (const SfSlicePlan *plan, const SfLane *lane)
+{
+  const SfSlice *s0 = g_ptr_array_index (plan->slices, 0);
+  return MAX (sf_slice_limit (s0, lane->z, lane->n, lane->dx_m), s0->i_pivot);
+}
+
+void
+sf_lane_account (const double *z0, const double *z1, const double *final, guint n, double cell_m3,
+                 SfLaneAccount *acc)
+{
+  memset (acc, 0, sizeof *acc);
+  for (guint i = 0; i < n; i++)
     {
-      double t = i <= last->i_pivot ? last->target[i] : s0->target[i];
-      if (lane->z[i] > t)
-        v += (lane->z[i] - t) * lane->dx_m * lane->width_m;
+      if (isinf (final[i]))
+        {
+          acc->moved_lcm += (z1[i] - z0[i]) * cell_m3;
+          continue;
+        }
+      acc->planned_lcm += MAX (0.0, z0[i] - final[i]) * cell_m3;
+      acc->left_lcm += MAX (0.0, z1[i] - final[i]) * cell_m3;
+      acc->dropped_lcm += (MIN (z1[i], final[i]) - MIN (z0[i], final[i])) * cell_m3;
     }
-  return v;
+}
+
+void
+sf_lane_cursor_init (SfLaneCursor *c, const SfSlicePlan *plan, SfLane *lane)
+{
+  memset (c, 0, sizeof *c);
+  c->plan = plan;
+  c->lane = lane;
+  c->best_left = INFINITY;
+  c->end_reason = "done";
+}
+
+SfStepKind
+sf_lane_cursor_step (SfLaneCursor *c, const SfPushMachine *pm, SfPushResult *pr)
+{
+  const guint n_slices = c->plan->slices->len;
+  if (c->slice >= n_slices)
+    return SF_STEP_LANE_DONE;
+  SfLane *lane = c->lane;
+  const SfSlice *s = g_ptr_array_index (c->plan->slices, c->slice);
+  const char *reason = NULL;
+  if (c->pushes_in_slice >= SF_MAX_PUSHES_PER_SLICE)
+    reason = "push limit";
+  else
+    {
+      guint limit = sf_slice_limit (s, lane->z, lane->n, lane->dx_m);
+      guint end = sf_slice_cut_end (s, lane->z, limit, SF_CUT_TOL_M);
+      SfPushSpec spec = { s->target, end, SF_CUT_TOL_M, SF_SLICE_DONE_SHARE * pm->blade_lcm,
+                          s->through_pivot || s->kind == SF_SLICE_STRAIGHT };
+      switch (sf_push_cycle (pm, lane, &spec, pr))
+        {
+        case SF_PUSH_DONE:
+          {
+            c->pushes_in_slice++;
+            /* Watchdog: material dropped where traction runs out can be
+             * pushed back and forth without ever reaching the dump. */
+            double left = sf_lane_volume_above (lane, s->target, 0, end);
+            if (left < c->best_left - 0.01 * pm->blade_lcm)
+              {
+                c->best_left = left;
+                c->since_best = 0;
+                return SF_STEP_PUSHED;
+              }
+            if (++c->since_best <= 200)
+              return SF_STEP_PUSHED;
+            /* this push counts; the slice ends after it */
+            c->end_reason = "no progress";
+            c->slice = n_slices;
+            return SF_STEP_PUSHED;
+          }
+        case SF_PUSH_NOTHING_LEFT:
+          reason = "done";
+          break;
+        case SF_PUSH_STALLED:
+          reason = "cannot cut";
+          break;
+        case SF_PUSH_NO_ROOM:
+          reason = "no dump room";
+          break;
+        }
+    }
+  c->end_reason = reason;
+  c->pushes_in_slice = 0;
+  c->best_left = INFINITY;
+  c->since_best = 0;
+  /* A slice that ran out of dump room hands over to the next, whose fill
+   * reaches higher; the last one, or one that cannot cut, ends the lane. */
+  if (g_strcmp0 (reason, "done") == 0 || (g_strcmp0 (reason, "no dump room") == 0 && !s->through_pivot))
+    c->slice++;
+  else
+    c->slice = n_slices;
+  return c->slice >= n_slices ? SF_STEP_LANE_DONE : SF_STEP_SLICE_DONE;
+}
+
+static void
+slice_result_finish (SfSliceResult *r, double fprod, double lcm2bcm, double load_sum,
+                     double push_sum, double t_sum)
+{
+  r->moved_bcm = r->deposited_lcm * lcm2bcm;
+  r->operating_h = t_sum / 3600.0 / fprod;
+  r->bcm_per_operating_h = r->operating_h > 0 ? r->moved_bcm / r->operating_h : 0.0;
+  if (r->pushes > 0)
+    {
+      r->mean_load_lcm = load_sum / r->pushes;
+      r->mean_push_m = push_sum / r->pushes;
+      r->mean_cycle_min = t_sum / r->pushes / 60.0;
+    }
 }
 
 void
@@ -329,47 +435,27 @@ sf_lane_work (const SfPushMachine *pm, SfLane *lane, const SfSlicePlan *plan,
   for (guint i = 0; i < n; i++)
     sum0 += lane->z[i] - lane->base[i];
   memset (totals, 0, sizeof *totals);
-  const SfSlice *s0 = g_ptr_array_index (plan->slices, 0);
-  const guint lim0 = MAX (sf_slice_limit (s0, lane->z, n, lane->dx_m), s0->i_pivot);
-  totals->planned_bcm = zone_excess_lcm (lane, plan, lim0) * lcm2bcm;
+  const guint lim0 = sf_slice_plan_zone_end (plan, lane);
+  g_autofree double *final = g_new (double, n);
+  g_autofree double *z0 = g_memdup2 (lane->z, n * sizeof (double));
+  sf_slice_plan_final (plan, lim0, final, n);
 
-  const double done_lcm = SF_SLICE_DONE_SHARE * pm->blade_lcm;
-  const double progress_lcm = 0.01 * pm->blade_lcm;
-  for (guint k = 0; k < plan->slices->len; k++)
+  SfLaneCursor cur;
+  sf_lane_cursor_init (&cur, plan, lane);
+  guint k = 0;
+  SfSliceResult r = { 0 };
+  double load_sum = 0, push_sum = 0, t_sum = 0;
+  for (;;)
     {
-      const SfSlice *s = g_ptr_array_index (plan->slices, k);
-      SfSliceResult r = { 0 };
-      r.slice = k;
-      r.kind = sf_slice_kind_to_str (s->kind);
-      r.end_reason = "done";
-      double load_sum = 0, push_sum = 0, t_sum = 0;
-      double best_left = INFINITY;
-      guint since_best = 0;
-      for (guint p = 0;; p++)
+      if (r.pushes == 0 && !r.kind)
         {
-          if (p >= SF_MAX_PUSHES_PER_SLICE)
-            {
-              r.end_reason = "push limit";
-              break;
-            }
-          guint limit = sf_slice_limit (s, lane->z, n, lane->dx_m);
-          guint end = sf_slice_cut_end (s, lane->z, limit, SF_CUT_TOL_M);
-          SfPushResult pr;
-          SfPushSpec spec = { s->target, end, SF_CUT_TOL_M, done_lcm,
-                              s->through_pivot || s->kind == SF_SLICE_STRAIGHT };
-          SfPushStatus st = sf_push_cycle (pm, lane, &spec, &pr);
-          if (st == SF_PUSH_NOTHING_LEFT)
-            break;
-          if (st == SF_PUSH_STALLED)
-            {
-              r.end_reason = "cannot cut";
-              break;
-            }
-          if (st == SF_PUSH_NO_ROOM)
-            {
-              r.end_reason = "no dump room";
-              break;
-            }
+          r.slice = k;
+          r.kind = sf_slice_kind_to_str (((SfSlice *) g_ptr_array_index (plan->slices, k))->kind);
+        }
+      SfPushResult pr;
+      SfStepKind st = sf_lane_cursor_step (&cur, pm, &pr);
+      if (st == SF_STEP_PUSHED)
+        {
           if (push_cb)
             push_cb (&pr, k, user_data);
           r.pushes++;
@@ -382,46 +468,34 @@ sf_lane_work (const SfPushMachine *pm, SfLane *lane, const SfSlicePlan *plan,
           load_sum += pr.deposited_lcm;
           push_sum += pr.x_dump_m - pr.x_start_m;
           t_sum += pr.t_cycle_s;
-          /* Watchdog: material dropped where traction runs out can be pushed
-           * back and forth without ever reaching the dump. */
-          double left = sf_lane_volume_above (lane, s->target, 0, end);
-          if (left < best_left - progress_lcm)
-            {
-              best_left = left;
-              since_best = 0;
-            }
-          else if (++since_best > 200)
-            {
-              r.end_reason = "no progress";
-              break;
-            }
+          if (cur.slice == k)
+            continue;
         }
-      r.moved_bcm = r.deposited_lcm * lcm2bcm;
-      r.operating_h = t_sum / 3600.0 / fprod;
-      r.bcm_per_operating_h = r.operating_h > 0 ? r.moved_bcm / r.operating_h : 0.0;
-      if (r.pushes > 0)
-        {
-          r.mean_load_lcm = load_sum / r.pushes;
-          r.mean_push_m = push_sum / r.pushes;
-          r.mean_cycle_min = t_sum / r.pushes / 60.0;
-        }
+      /* the slice k ended */
+      r.end_reason = cur.end_reason;
+      slice_result_finish (&r, fprod, lcm2bcm, load_sum, push_sum, t_sum);
       g_array_append_val (out, r);
       totals->pushes += r.pushes;
       totals->moved_bcm += r.moved_bcm;
       totals->rehandled_bcm += r.rehandled_lcm * lcm2bcm;
       totals->over_spoil_bcm += r.over_spoil_lcm * lcm2bcm;
       totals->operating_h += r.operating_h;
-      /* A slice that ran out of dump room hands over to the next, whose fill
-       * reaches higher; the last one, or one that cannot cut, ends the lane. */
-      if (g_strcmp0 (r.end_reason, "done") != 0
-          && (g_strcmp0 (r.end_reason, "no dump room") != 0 || s->through_pivot))
+      if (cur.slice >= plan->slices->len)
         break;
+      k = cur.slice;
+      memset (&r, 0, sizeof r);
+      load_sum = push_sum = t_sum = 0;
     }
   totals->bcm_per_operating_h = totals->operating_h > 0 ? totals->moved_bcm / totals->operating_h
                                                         : 0.0;
   totals->key_bcm = plan->key_lcm * lcm2bcm;
-  totals->left_bcm = zone_excess_lcm (lane, plan, lim0) * lcm2bcm;
+  SfLaneAccount acc;
+  sf_lane_account (z0, lane->z, final, n, lane->dx_m * lane->width_m, &acc);
+  totals->planned_bcm = acc.planned_lcm * lcm2bcm;
+  totals->left_bcm = acc.left_lcm * lcm2bcm;
   totals->uncovered_bcm = totals->planned_bcm - totals->left_bcm;
+  totals->moved_out_bcm = acc.moved_lcm * lcm2bcm;
+  totals->dropped_in_zone_bcm = acc.dropped_lcm * lcm2bcm;
   double sum1 = 0;
   for (guint i = 0; i < n; i++)
     sum1 += lane->z[i] - lane->base[i];

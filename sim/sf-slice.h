@@ -84,6 +84,46 @@ guint sf_slice_limit (const SfSlice *s, const double *z, guint n, double dx_m);
  * than tol above the target; 0 when none does. */
 guint sf_slice_cut_end (const SfSlice *s, const double *z, guint limit, double tol_m);
 
+/* The final design inside the dozing zone, cell by cell (+inf outside the
+ * zone, i.e. past `lim0`, the tip-over limit at the start). */
+void sf_slice_plan_final (const SfSlicePlan *plan, guint lim0, double *final, guint n);
+/* The end of the dozing zone on a lane before any work: the tip-over limit. */
+guint sf_slice_plan_zone_end (const SfSlicePlan *plan, const SfLane *lane);
+
+/* Volume accounting of a lane between two states z0 -> z1 against the final
+ * design (loose m3).  With Z the zone cells and O the rest:
+ *   planned = sum_Z max(0, z0 - final), left = sum_Z max(0, z1 - final),
+ *   dropped = sum_Z [min(z1, final) - min(z0, final)]  (left in the zone's
+ *             footprint below the design: drops, spill, fill of low spots),
+ *   moved   = sum_O (z1 - z0)                          (carried out of the zone).
+ * Because every push conserves volume, planned = moved + dropped + left. */
+typedef struct {
+  double planned_lcm, moved_lcm, dropped_lcm, left_lcm;
+} SfLaneAccount;
+void sf_lane_account (const double *z0, const double *z1, const double *final, guint n,
+                      double cell_m3, SfLaneAccount *acc);
+
+/* A lane being worked slice by slice, one push at a time (the fleet
+ * simulation drives it push by push; sf_lane_work runs it to the end). */
+typedef enum {
+  SF_STEP_PUSHED = 0,    /* a push was made (it may also have ended the lane: see slice) */
+  SF_STEP_SLICE_DONE,    /* no push: the slice ended (end_reason), the next one starts */
+  SF_STEP_LANE_DONE,     /* no push: the lane is finished */
+} SfStepKind;
+
+typedef struct {
+  const SfSlicePlan *plan; /* borrowed */
+  SfLane *lane;            /* borrowed */
+  guint slice;             /* current slice; plan->slices->len when finished */
+  guint pushes_in_slice;
+  double best_left;        /* watchdog */
+  guint since_best;
+  const char *end_reason;  /* why the last slice ended (static string) */
+} SfLaneCursor;
+
+void sf_lane_cursor_init (SfLaneCursor *c, const SfSlicePlan *plan, SfLane *lane);
+SfStepKind sf_lane_cursor_step (SfLaneCursor *c, const SfPushMachine *pm, SfPushResult *pr);
+
 /* Works one lane through every slice of the plan with one machine.  Appends
  * one SfSliceResult per slice to `out` (GArray of SfSliceResult) and fills
  * the totals.  Pushes are made until each slice holds less than the

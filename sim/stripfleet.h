@@ -121,6 +121,8 @@ typedef struct {
   double left_bcm;           /* still above the final design in the zone at the end */
   double rehandled_bcm;      /* dumped fill cut again by later pushes */
   double key_bcm;            /* left under a lifted pivot's ramp */
+  double moved_out_bcm;      /* net carried out of the dozing zone */
+  double dropped_in_zone_bcm;/* left in the zone's footprint below the design */
   double over_spoil_bcm;    /* dumped where the next fleet digs: dragline rehandle */
   double operating_h, bcm_per_operating_h;
   double lane_volume_error;  /* relative change of the lane's total loose volume */

@@ -244,7 +244,10 @@ print_lane (const GArray *res, const SfLaneTotals *t)
     }
   printf ("%5s %-9s %7u %9.1f %9s %9s %9.1f %9.2f %9.1f\n", "all", "", t->pushes, t->moved_bcm,
           "", "", t->rehandled_bcm, t->operating_h, t->bcm_per_operating_h);
-  printf ("\nplanned %.1f bcm; uncovered %.1f bcm; left above the final target %.1f bcm\n"
+  printf ("\nplanned %.1f bcm = moved out of the zone %.1f + dropped in the zone %.1f + left "
+          "above the final design %.1f\n",
+          t->planned_bcm, t->moved_out_bcm, t->dropped_in_zone_bcm, t->left_bcm);
+  printf ("planned %.1f bcm; uncovered %.1f bcm; left above the final target %.1f bcm\n"
           "dumped %.1f bcm, of which dozer rehandle %.1f bcm; dumped over the final spoil line "
           "(dragline rehandle) %.1f bcm;\nkey left under a lifted pivot %.1f bcm\n",
           t->planned_bcm, t->uncovered_bcm, t->left_bcm, t->moved_bcm, t->rehandled_bcm,
