@@ -5,7 +5,10 @@
  * the format is version 1, "stripfleet-scenario-1").
  *
  * Owns: turning a scenario file (and the section CSV files it names) into a
- * typed SfScenario, and the defaults of every optional value.  The cJSON
+ * typed SfScenario, and the defaults of every optional value, including the
+ * roster, reliability and simulation parts (sf_roster_defaults,
+ * sf_simulation_defaults; their _clear functions free what they own and
+ * sf_scenario_free calls them).  The cJSON
  * tree lives only inside load_text(): parse, check and convert in one pass,
  * then cJSON_Delete exactly once (through g_autoptr) whatever happened.
  *
@@ -94,6 +97,83 @@ sf_factors_defaults (SfFactors *f)
   f->material = 1.0;
 }
 
+/* The roster of a scenario without "roster": one 24 h shift from midnight,
+ * one crew with an operator for every dozer, a pattern of one day, no
+ * shift-change time, no meals, no night factor, no weather.  Overwrites *r
+ * without freeing: r must be zeroed or cleared (sf_roster_clear) first.
+ * Free with sf_roster_clear. */
+void
+sf_roster_defaults (SfRoster *r, guint n_dozers)
+{
+  g_return_if_fail (r != NULL);
+  *r = (SfRoster){
+    .n_shifts = 1,
+    .n_crews = 1,
+    .pattern_days = 1,
+    .shift_change_min = 0.0,
+    .meal_min = 0.0,
+    .meal_after_h = 5.0,
+    .hot_seat = FALSE,
+    .night_factor = 1.0,
+    .wet_day_probability = 0.0,
+    .wet_stop_h = { .kind = SF_DIST_FIXED, .mean = 0.0 }, /* unused: no weather */
+  };
+  r->shifts[0] = (SfShift){ g_strdup ("all-day"), 0, 24.0, FALSE };
+  r->crews[0] = (SfCrew){ g_strdup ("all"), MIN (n_dozers, SF_MAX_DOZERS), 1.0 };
+  r->pattern = g_new0 (guint8, 1); /* day 0, shift 0: crew 0 */
+}
+
+/* Frees what the roster owns (names, pattern) and zeroes it.  Safe on a
+ * zeroed or partly filled roster and on one cleared before. */
+void
+sf_roster_clear (SfRoster *r)
+{
+  if (!r)
+    return;
+  for (guint i = 0; i < SF_MAX_SHIFTS; i++)
+    g_free (r->shifts[i].name);
+  for (guint i = 0; i < SF_MAX_CREWS; i++)
+    g_free (r->crews[i].name);
+  g_free (r->pattern);
+  memset (r, 0, sizeof *r);
+}
+
+/* The simulation settings of a scenario without "simulation".  The start is
+ * a fixed date (Monday 4 January 2027, 06:00 UTC) so that results do not
+ * depend on when the program runs; every block is workable at the start
+ * (blast_h: n_blocks zeros; NULL when n_blocks is 0).  Overwrites *s without
+ * freeing: s must be zeroed or cleared first.  Free with
+ * sf_simulation_clear. */
+void
+sf_simulation_defaults (SfSimulation *s, guint n_blocks)
+{
+  g_return_if_fail (s != NULL);
+  g_autoptr (GTimeZone) utc = g_time_zone_new_utc ();
+  *s = (SfSimulation){
+    .start = g_date_time_new (utc, 2027, 1, 4, 6, 0, 0.0),
+    .seed = 1,
+    .horizon_days = 3650.0,
+    .dispatch = SF_DISPATCH_FINISH_BLOCK,
+    .min_separation_lanes = 1,
+    .max_slice_lead = 1,
+    .tram_speed_kmh = 5.0,
+    .fitters = 2,
+    .blast_h = n_blocks ? g_new0 (double, n_blocks) : NULL,
+  };
+}
+
+/* Releases the start time and the blast table and zeroes s.  Safe on a
+ * zeroed simulation and on one cleared before. */
+void
+sf_simulation_clear (SfSimulation *s)
+{
+  if (!s)
+    return;
+  g_clear_pointer (&s->start, g_date_time_unref);
+  g_free (s->blast_h);
+  memset (s, 0, sizeof *s);
+}
+
 /* Rated blade capacity, loose m3.  A rated value given for the class wins.
  * Without one, only a straight blade has a published rating formula:
  * V = 0.8 W H^2 (SAE J1265, superseded by SAE J/ISO 9246; W the blade width,
@@ -153,6 +233,8 @@ sf_scenario_free (SfScenario *sc)
   g_clear_pointer (&sc->sections, g_ptr_array_unref);
   g_clear_pointer (&sc->classes, g_ptr_array_unref);
   g_clear_pointer (&sc->fleet, g_array_unref);
+  sf_roster_clear (&sc->roster);
+  sf_simulation_clear (&sc->sim);
   g_free (sc);
 }
 
@@ -241,6 +323,8 @@ typedef struct {
   guint n_problems;         /* every problem found, kept or not */
   gboolean seen_io, seen_syntax;
   GString *path;            /* JSON path of the value being read, "" at the root */
+  const char *note;         /* NULL, or a few words put before each message while set
+                               ("impossible parameters for dist ..."; borrowed) */
 } Reader;
 
 static void
@@ -276,9 +360,10 @@ problem (Reader *r, SfScenarioError code, const char *fmt, ...)
   va_start (ap, fmt);
   g_autofree char *msg = g_strdup_vprintf (fmt, ap);
   va_end (ap);
+  g_autofree char *text = r->note ? g_strdup_printf ("%s: %s", r->note, msg) : g_strdup (msg);
   add_line (r, code,
-            r->path->len ? g_strdup_printf ("%s: %s: %s", r->label, r->path->str, msg)
-                         : g_strdup_printf ("%s: %s", r->label, msg));
+            r->path->len ? g_strdup_printf ("%s: %s: %s", r->label, r->path->str, text)
+                         : g_strdup_printf ("%s: %s", r->label, text));
 }
 
 #define invalid(r, ...) problem ((r), SF_SCENARIO_ERROR_INVALID, __VA_ARGS__)
@@ -1389,6 +1474,139 @@ read_blade (Reader *r, const cJSON *b, SfDozerClass *c)
     }
 }
 
+/* ==== distributions and reliability ======================================== */
+
+/* Largest mean, sd or scale of a distribution, in the unit of its field
+ * (hours for every distribution of format 1). */
+#define DIST_MAX 1e5
+
+static const char *const dist_kinds[] = { "fixed", "exponential", "weibull", "lognormal" };
+static const char *const dist_params[] = { "mean", "sd", "shape", "scale" };
+G_STATIC_ASSERT (SF_DIST_FIXED == 0 && SF_DIST_EXPONENTIAL == 1 && SF_DIST_WEIBULL == 2
+                 && SF_DIST_LOGNORMAL == 3);
+
+/* Whether a distribution of kind k takes parameter dist_params[p]. */
+static gboolean
+dist_takes (guint k, guint p)
+{
+  static const gboolean takes[4][4] = {
+    /*                mean   sd     shape  scale */
+    /* fixed */       { TRUE, FALSE, FALSE, FALSE },
+    /* exponential */ { TRUE, FALSE, FALSE, FALSE },
+    /* weibull */     { FALSE, FALSE, TRUE, TRUE },
+    /* lognormal */   { TRUE, TRUE, FALSE, FALSE },
+  };
+  return takes[k][p];
+}
+
+/* obj.key as a distribution ({"dist": "exponential", "mean": 80}; the kinds
+ * and their parameters in docs/scenario-format.md) with means, sds and
+ * scales in `unit`.  Absent: a problem when `required` (why_required says
+ * why, for the message), else *out stays the unused fixed 0.  Returns TRUE
+ * when the key was given and is valid. */
+static gboolean
+read_dist (Reader *r, const cJSON *obj, const char *key, const char *unit, gboolean required,
+           const char *why_required, SfDist *out)
+{
+  static const char *const keys[] = { "dist", "mean", "sd", "shape", "scale", NULL };
+  *out = (SfDist){ .kind = SF_DIST_FIXED };
+  const cJSON *o = member (obj, key);
+  if (!o && !required)
+    return FALSE;
+  gsize mark = path_key (r, key);
+  gboolean ok = FALSE;
+  if (!o)
+    invalid (r, "expected a distribution object (%s), found nothing (the key is missing)",
+             why_required ? why_required : "required");
+  else if (!cJSON_IsObject (o))
+    invalid (r, "expected a distribution object such as {\"dist\": \"exponential\", \"mean\": 80}, "
+                "found %s",
+             kind_text (o));
+  else
+    {
+      check_keys (r, o, keys);
+      guint kind = 0;
+      if (read_enum (r, o, "dist", dist_kinds, G_N_ELEMENTS (dist_kinds), TRUE, 0, &kind))
+        {
+          out->kind = (SfDistKind)kind;
+          /* missing or out-of-range parameters are "impossible parameters";
+           * a value of the wrong type is only that */
+          g_autofree char *note
+              = g_strdup_printf ("impossible parameters for dist \"%s\"", dist_kinds[kind]);
+          const Range rg[] = { OC (0, DIST_MAX, unit), OC (0, DIST_MAX, unit), OC (0.1, 20, ""),
+                               OC (0, DIST_MAX, unit) };
+          double *dst[] = { &out->mean, &out->sd, &out->shape, &out->scale };
+          G_STATIC_ASSERT (G_N_ELEMENTS (rg) == G_N_ELEMENTS (dist_params));
+          ok = TRUE;
+          for (guint p = 0; p < G_N_ELEMENTS (dist_params); p++)
+            if (dist_takes (kind, p))
+              {
+                const cJSON *v = member (o, dist_params[p]);
+                r->note = !v || cJSON_IsNumber (v) ? note : NULL;
+                ok &= req_number (r, o, dist_params[p], rg[p], dst[p]);
+                r->note = NULL;
+              }
+          /* parameters of another kind: "sd" with an exponential */
+          for (guint p = 0; p < G_N_ELEMENTS (dist_params); p++)
+            if (!dist_takes (kind, p) && member (o, dist_params[p]))
+              {
+                /* the kinds that take it: "\"fixed\", \"exponential\" or \"lognormal\"" */
+                g_autoptr (GString) which = g_string_new (NULL);
+                guint n_take = 0, n = 0;
+                for (guint k = 0; k < G_N_ELEMENTS (dist_kinds); k++)
+                  n_take += dist_takes (k, p) ? 1 : 0;
+                for (guint k = 0; k < G_N_ELEMENTS (dist_kinds); k++)
+                  if (dist_takes (k, p))
+                    {
+                      if (n > 0)
+                        g_string_append (which, n + 1 == n_take ? " or " : ", ");
+                      g_string_append_printf (which, "\"%s\"", dist_kinds[k]);
+                      n++;
+                    }
+                gsize m2 = path_key (r, dist_params[p]);
+                invalid (r, "only allowed when dist is %s, found it with dist \"%s\"", which->str,
+                         dist_kinds[kind]);
+                path_pop (r, m2);
+                ok = FALSE;
+              }
+        }
+    }
+  path_pop (r, mark);
+  return ok;
+}
+
+/* dozer_classes[i].reliability (the reader's path names it). */
+static void
+read_reliability (Reader *r, const cJSON *o, SfReliability *rel)
+{
+  static const char *const keys[] = { "tbf_h", "ttr_h", "service_interval_h", "service_h",
+                                      "refuel_min", NULL };
+  check_keys (r, o, keys);
+  /* A class fails when tbf_h is given (valid or not: a bad value is
+   * reported and the file refused either way). */
+  rel->failures = member (o, "tbf_h") != NULL;
+  if (rel->failures)
+    {
+      read_dist (r, o, "tbf_h", "h", TRUE, NULL, &rel->tbf_h);
+      read_dist (r, o, "ttr_h", "h", TRUE, "repair hours, required with tbf_h", &rel->ttr_h);
+    }
+  else if (member (o, "ttr_h"))
+    {
+      gsize mark = path_key (r, "ttr_h");
+      invalid (r, "only allowed together with tbf_h (without tbf_h the class never fails)");
+      path_pop (r, mark);
+    }
+  double interval_h = 0.0;
+  gboolean interval_ok = opt_number (r, o, "service_interval_h", CC (0, DIST_MAX, "h"), 0.0,
+                                     &interval_h);
+  rel->service_interval_h = interval_h;
+  /* service_h: required with a service interval; when the interval is 0
+   * (services switched off) a given value is still checked, then unused */
+  read_number (r, o, "service_h", OC (0, 1000, "h"), interval_ok && interval_h > 0.0, 0.0,
+               &rel->service_h);
+  opt_number (r, o, "refuel_min", CC (0, 240, "min"), 0.0, &rel->refuel_min);
+}
+
 static SfDozerClass *
 read_class (Reader *r, const cJSON *o)
 {
@@ -1396,7 +1614,7 @@ read_class (Reader *r, const cJSON *o)
                                       "drivetrain_efficiency", "blade", "forward_speeds_kmh",
                                       "reverse_speeds_kmh", "push_gear", "return_gear",
                                       "fixed_time_min", "traction_coefficient",
-                                      "cost_per_operating_h", NULL };
+                                      "cost_per_operating_h", "reliability", NULL };
   SfDozerClass *c = g_new0 (SfDozerClass, 1);
   if (!cJSON_IsObject (o))
     {
@@ -1433,6 +1651,15 @@ read_class (Reader *r, const cJSON *o)
   opt_number (r, o, "fixed_time_min", OC (0, 5, "min"), 0.05, &c->fixed_time_min);
   opt_number (r, o, "traction_coefficient", OC (0.05, 1.5, ""), 0.55, &c->traction_coefficient);
   opt_number (r, o, "cost_per_operating_h", CC (0, 1e6, "per h"), 0.0, &c->cost_per_operating_h);
+  /* absent: the class never fails, no services, no refuelling stops (the
+   * zeroed SfReliability) */
+  const cJSON *rel = read_object (r, o, "reliability", FALSE);
+  if (rel)
+    {
+      gsize mark = path_key (r, "reliability");
+      read_reliability (r, rel, &c->reliability);
+      path_pop (r, mark);
+    }
   return c;
 }
 
@@ -1691,6 +1918,593 @@ read_coal (Reader *r, const cJSON *root, SfScenario *sc)
   path_pop (r, mark);
 }
 
+/* ==== roster =============================================================== */
+
+#define MIN_PER_DAY 1440
+/* Shift ends and starts closer than this (minutes) meet: hours typed as
+ * decimals (8.333333 h) need not hit the minute exactly. */
+#define SHIFT_TOL_MIN 1e-3
+
+/* User text for a message: bare when it is plain (no spaces, quotes or
+ * control characters, not cut), else quoted.  Newly allocated. */
+static char *
+shown (const char *s)
+{
+  g_autofree char *q = quoted (s);
+  if (*s && strlen (q) == strlen (s) + 2 && !strchr (s, ' '))
+    return g_strdup (s);
+  return g_steal_pointer (&q);
+}
+
+/* "HH:MM", two digits each, 00:00..23:59, as minutes after midnight. */
+static gboolean
+parse_clock (const char *s, guint *min)
+{
+  if (strlen (s) != 5 || s[2] != ':')
+    return FALSE;
+  for (int i = 0; i < 5; i++)
+    if (i != 2 && !g_ascii_isdigit (s[i]))
+      return FALSE;
+  guint h = (guint)(s[0] - '0') * 10 + (guint)(s[1] - '0');
+  guint m = (guint)(s[3] - '0') * 10 + (guint)(s[4] - '0');
+  if (h > 23 || m > 59)
+    return FALSE;
+  *min = h * 60 + m;
+  return TRUE;
+}
+
+/* Minutes after some midnight as a clock time "HH:MM" (to the minute). */
+typedef struct {
+  char s[8];
+} ClockText;
+
+static ClockText
+clock_text (double min)
+{
+  ClockText t;
+  long m = lround (fmod (min, MIN_PER_DAY));
+  m = (m % MIN_PER_DAY + MIN_PER_DAY) % MIN_PER_DAY;
+  g_snprintf (t.s, sizeof t.s, "%02ld:%02ld", m / 60, m % 60);
+  return t;
+}
+
+/* A gap or overlap of `min` minutes for messages: "2.0 h", or "0.5 min"
+ * when under 0.05 h.  Newly allocated. */
+static char *
+span_text (double min)
+{
+  char buf[G_ASCII_DTOSTR_BUF_SIZE];
+  if (min >= 3.0)
+    return g_strdup_printf ("%s h", g_ascii_formatd (buf, sizeof buf, "%.1f", min / 60.0));
+  return g_strdup_printf ("%s min", g_ascii_formatd (buf, sizeof buf, "%.2g", min));
+}
+
+typedef struct {
+  guint n_given;                  /* entries of "shifts" when their count is usable, else 0 */
+  gboolean fields_ok;             /* every shift's name, start and hours valid */
+  gboolean tiled;                 /* ... and they tile the day: stored in start order */
+  guint to_stored[SF_MAX_SHIFTS]; /* index in the file -> index in SfRoster.shifts */
+} ShiftState;
+
+/* The shifts must tile the day in the order given: each starts where the
+ * previous one ends (the last one wrapping to the first, mod 24 h) and the
+ * hours add up to 24.  Pair problems name the pair; the sum is reported
+ * only when every pair meets (then it is a multiple of 24 h) or there is a
+ * single shift, since a gap or overlap already implies it. */
+static gboolean
+check_shifts_tile (Reader *r, const SfShift *sh, guint n)
+{
+  gboolean ok = TRUE;
+  double sum_h = 0.0;
+  for (guint i = 0; i < n; i++)
+    sum_h += sh[i].hours;
+  for (guint i = 0; n > 1 && i < n; i++)
+    {
+      const SfShift *a = &sh[i], *b = &sh[(i + 1) % n];
+      double end_min = a->start_min + a->hours * 60.0;
+      double d = fmod (b->start_min - end_min, MIN_PER_DAY); /* in (-1440, 1440) */
+      if (d > MIN_PER_DAY / 2)
+        d -= MIN_PER_DAY;
+      else if (d <= -MIN_PER_DAY / 2)
+        d += MIN_PER_DAY;
+      if (fabs (d) <= SHIFT_TOL_MIN)
+        continue;
+      ok = FALSE;
+      g_autofree char *na = shown (a->name), *nb = shown (b->name);
+      g_autofree char *span = span_text (fabs (d));
+      if (d < 0)
+        invalid (r, "shifts %s and %s overlap by %s: %s runs %s h from %s to %s, %s starts at %s",
+                 na, nb, span, na, num (a->hours).s, clock_text (a->start_min).s,
+                 clock_text (end_min).s, nb, clock_text (b->start_min).s);
+      else
+        invalid (r, "shifts leave a gap of %s between %s and %s: %s runs %s h from %s to %s, %s "
+                    "starts at %s",
+                 span, na, nb, na, num (a->hours).s, clock_text (a->start_min).s,
+                 clock_text (end_min).s, nb, clock_text (b->start_min).s);
+    }
+  if (ok && fabs (sum_h - 24.0) > SHIFT_TOL_MIN / 60.0)
+    {
+      invalid (r, "the shifts add up to %s h a day, expected exactly 24 h (each shift starts "
+                  "where the previous one ends, the last one where the first begins)",
+               num (sum_h).s);
+      ok = FALSE;
+    }
+  return ok;
+}
+
+/* roster.shifts into ro->shifts, then rotated into start order when they
+ * tile the day (a tiling is a rotation of start order). */
+static void
+read_shifts (Reader *r, const cJSON *o, SfRoster *ro, ShiftState *ss)
+{
+  static const char *const keys[] = { "name", "start", "hours", "night", NULL };
+  *ss = (ShiftState){ 0 };
+  for (guint g = 0; g < SF_MAX_SHIFTS; g++)
+    ss->to_stored[g] = g;
+  const cJSON *arr = read_array (r, o, "shifts", TRUE);
+  if (!arr)
+    return;
+  gsize mark = path_key (r, "shifts");
+  int n = cJSON_GetArraySize (arr);
+  if (n == 0)
+    invalid (r, "expected at least one shift, found none");
+  else if (n > SF_MAX_SHIFTS)
+    invalid (r, "expected at most %d shifts, found %d; the limit is %d shifts a day",
+             SF_MAX_SHIFTS, n, SF_MAX_SHIFTS);
+  else
+    {
+      ss->n_given = ro->n_shifts = (guint)n;
+      gboolean ok = TRUE;
+      guint i = 0;
+      const cJSON *item;
+      cJSON_ArrayForEach (item, arr)
+      {
+        gsize m2 = path_index (r, i);
+        SfShift *sh = &ro->shifts[i];
+        i++;
+        if (!cJSON_IsObject (item))
+          {
+            invalid (r, "expected an object, found %s", kind_text (item));
+            sh->name = g_strdup ("");
+            ok = FALSE;
+            path_pop (r, m2);
+            continue;
+          }
+        check_keys (r, item, keys);
+        const char *name = read_string (r, item, "name", TRUE, TRUE, NULL);
+        for (guint j = 0; name && j + 1 < i; j++)
+          if (g_strcmp0 (ro->shifts[j].name, name) == 0)
+            {
+              g_autofree char *q = quoted (name);
+              gsize m3 = path_key (r, "name");
+              invalid (r, "shift name %s is already used by shifts[%u]; names must be unique", q,
+                       j);
+              path_pop (r, m3);
+              ok = FALSE;
+              break;
+            }
+        ok &= name != NULL;
+        sh->name = g_strdup (name ? name : "");
+        const char *start = read_string (r, item, "start", TRUE, TRUE, NULL);
+        if (start && !parse_clock (start, &sh->start_min))
+          {
+            g_autofree char *q = quoted (start);
+            gsize m3 = path_key (r, "start");
+            invalid (r, "expected a time of day \"HH:MM\" from 00:00 to 23:59, found %s", q);
+            path_pop (r, m3);
+            start = NULL;
+          }
+        ok &= start != NULL;
+        ok &= req_number (r, item, "hours", OC (0, 24, "h"), &sh->hours);
+        read_bool (r, item, "night", FALSE, &sh->night);
+        path_pop (r, m2);
+      }
+      ss->fields_ok = ok;
+      if (ok && check_shifts_tile (r, ro->shifts, ro->n_shifts))
+        {
+          guint k = 0;
+          for (guint j = 1; j < ro->n_shifts; j++)
+            if (ro->shifts[j].start_min < ro->shifts[k].start_min)
+              k = j;
+          SfShift tmp[SF_MAX_SHIFTS];
+          for (guint j = 0; j < ro->n_shifts; j++)
+            tmp[j] = ro->shifts[(k + j) % ro->n_shifts];
+          memcpy (ro->shifts, tmp, ro->n_shifts * sizeof tmp[0]); /* names move, not copied */
+          for (guint g = 0; g < ro->n_shifts; g++)
+            ss->to_stored[g] = (g + ro->n_shifts - k) % ro->n_shifts;
+          ss->tiled = TRUE;
+        }
+    }
+  path_pop (r, mark);
+}
+
+/* roster.crews.  Returns TRUE when every crew has a usable, unique name (so
+ * that the pattern can be checked against them). */
+static gboolean
+read_crews (Reader *r, const cJSON *o, SfRoster *ro)
+{
+  static const char *const keys[] = { "name", "operators", "skill", NULL };
+  const cJSON *arr = read_array (r, o, "crews", TRUE);
+  if (!arr)
+    return FALSE;
+  gsize mark = path_key (r, "crews");
+  int n = cJSON_GetArraySize (arr);
+  gboolean names_ok = FALSE;
+  if (n == 0)
+    invalid (r, "expected at least one crew, found none");
+  else if (n > SF_MAX_CREWS)
+    invalid (r, "expected at most %d crews, found %d; the limit is %d crews", SF_MAX_CREWS, n,
+             SF_MAX_CREWS);
+  else
+    {
+      names_ok = TRUE;
+      ro->n_crews = (guint)n;
+      guint i = 0;
+      const cJSON *item;
+      cJSON_ArrayForEach (item, arr)
+      {
+        gsize m2 = path_index (r, i);
+        SfCrew *c = &ro->crews[i];
+        i++;
+        c->skill = 1.0;
+        if (!cJSON_IsObject (item))
+          {
+            invalid (r, "expected an object, found %s", kind_text (item));
+            c->name = g_strdup ("");
+            names_ok = FALSE;
+            path_pop (r, m2);
+            continue;
+          }
+        check_keys (r, item, keys);
+        const char *name = read_string (r, item, "name", TRUE, TRUE, NULL);
+        for (guint j = 0; name && j + 1 < i; j++)
+          if (g_strcmp0 (ro->crews[j].name, name) == 0)
+            {
+              g_autofree char *q = quoted (name);
+              gsize m3 = path_key (r, "name");
+              invalid (r, "crew name %s is already used by crews[%u]; names must be unique", q, j);
+              path_pop (r, m3);
+              names_ok = FALSE;
+              break;
+            }
+        names_ok &= name != NULL;
+        c->name = g_strdup (name ? name : "");
+        read_uint (r, item, "operators", 0, SF_MAX_DOZERS, "operators", TRUE, 0, &c->operators);
+        opt_number (r, item, "skill", OC (0, 1.5, ""), 1.0, &c->skill);
+        path_pop (r, m2);
+      }
+    }
+  path_pop (r, mark);
+  return names_ok;
+}
+
+/* roster.pattern: one row per day of the cycle, one crew name (or null) per
+ * shift in the order of "shifts"; stored by day in start order of the
+ * shifts (ss->to_stored), SF_NO_CREW for null. */
+static void
+read_pattern (Reader *r, const cJSON *o, SfRoster *ro, const ShiftState *ss, gboolean crews_ok)
+{
+  G_STATIC_ASSERT (SF_MAX_CREWS < SF_NO_CREW && SF_NO_CREW <= G_MAXUINT8);
+  const cJSON *arr = read_array (r, o, "pattern", TRUE);
+  if (!arr)
+    return;
+  gsize mark = path_key (r, "pattern");
+  int n = cJSON_GetArraySize (arr);
+  if (n == 0)
+    invalid (r, "expected at least one day, found none");
+  else if (n > SF_MAX_PATTERN_DAYS)
+    invalid (r, "expected at most %d days, found %d; the limit is %d pattern days",
+             SF_MAX_PATTERN_DAYS, n, SF_MAX_PATTERN_DAYS);
+  else
+    {
+      guint ns = ss->n_given;
+      ro->pattern_days = (guint)n;
+      if (ns)
+        {
+          ro->pattern = g_new (guint8, (gsize)n * ns);
+          memset (ro->pattern, SF_NO_CREW, (gsize)n * ns);
+        }
+      /* for messages: the shifts in file order, the crews */
+      g_autoptr (GString) shift_names = g_string_new (NULL);
+      for (guint g = 0; g < ns; g++)
+        {
+          g_autofree char *s = shown (ro->shifts[ss->to_stored[g]].name);
+          g_string_append_printf (shift_names, "%s%s", g ? ", " : "", s);
+        }
+      g_autoptr (GString) crew_names = g_string_new (NULL);
+      for (guint c = 0; crews_ok && c < ro->n_crews; c++)
+        {
+          g_autofree char *q = quoted (ro->crews[c].name);
+          g_string_append_printf (crew_names, "%s%s", c ? ", " : "", q);
+        }
+      guint d = 0;
+      const cJSON *row;
+      cJSON_ArrayForEach (row, arr)
+      {
+        gsize m2 = path_index (r, d);
+        if (!cJSON_IsArray (row))
+          {
+            invalid (r, "expected an array with one crew name or null per shift, found %s",
+                     kind_text (row));
+            path_pop (r, m2);
+            d++;
+            continue;
+          }
+        int m = cJSON_GetArraySize (row);
+        gboolean fits = ns && (guint)m == ns;
+        if (ns && !fits)
+          invalid (r, "expected %u entries, one crew name or null per shift (%s), found %d", ns,
+                   shift_names->str, m);
+        guint c = 0;
+        const cJSON *e;
+        cJSON_ArrayForEach (e, row)
+        {
+          gsize m3 = path_index (r, c);
+          guint idx = SF_NO_CREW;
+          if (cJSON_IsString (e) && e->valuestring)
+            {
+              if (crews_ok)
+                {
+                  for (guint k = 0; k < ro->n_crews && idx == SF_NO_CREW; k++)
+                    if (strcmp (ro->crews[k].name, e->valuestring) == 0)
+                      idx = k;
+                  if (idx == SF_NO_CREW)
+                    {
+                      g_autofree char *q = quoted (e->valuestring);
+                      invalid (r, "expected the name of a crew (%s) or null, found %s",
+                               crew_names->str, q);
+                    }
+                }
+            }
+          else if (!cJSON_IsNull (e))
+            invalid (r, "expected a crew name or null, found %s", kind_text (e));
+          if (fits)
+            ro->pattern[(gsize)d * ns + ss->to_stored[c]] = (guint8)idx;
+          path_pop (r, m3);
+          c++;
+        }
+        path_pop (r, m2);
+        d++;
+      }
+    }
+  path_pop (r, mark);
+}
+
+static void
+read_weather (Reader *r, const cJSON *o, SfRoster *ro)
+{
+  static const char *const keys[] = { "wet_day_probability", "stop_h", NULL };
+  const cJSON *w = read_object (r, o, "weather", FALSE);
+  if (!w)
+    return;
+  gsize mark = path_key (r, "weather");
+  check_keys (r, w, keys);
+  double p = 0.0;
+  gboolean p_ok = req_number (r, w, "wet_day_probability", CC (0, 1, ""), &p);
+  ro->wet_day_probability = p;
+  /* stop_h: required when wet days happen; with probability 0 a given
+   * distribution is still checked, then unused */
+  read_dist (r, w, "stop_h", "h", p_ok && p > 0.0,
+             "hours of a wet-weather stop, required when wet_day_probability > 0",
+             &ro->wet_stop_h);
+  path_pop (r, mark);
+}
+
+static void
+read_roster (Reader *r, const cJSON *root, SfScenario *sc)
+{
+  static const char *const keys[] = { "shifts", "crews", "pattern", "shift_change_min",
+                                      "meal_min", "meal_after_h", "hot_seat", "night_factor",
+                                      "weather", NULL };
+  SfRoster *ro = &sc->roster;
+  sf_roster_clear (ro);
+  const cJSON *o = read_object (r, root, "roster", FALSE);
+  if (!o)
+    {
+      guint64 total = 0;
+      for (guint i = 0; i < sc->fleet->len; i++)
+        total += g_array_index (sc->fleet, SfFleetEntry, i).count;
+      sf_roster_defaults (ro, (guint)MIN (total, SF_MAX_DOZERS));
+      return;
+    }
+  gsize mark = path_key (r, "roster");
+  check_keys (r, o, keys);
+  ShiftState ss;
+  read_shifts (r, o, ro, &ss);
+  gboolean crews_ok = read_crews (r, o, ro);
+  read_pattern (r, o, ro, &ss, crews_ok);
+  opt_number (r, o, "shift_change_min", CC (0, 180, "min"), 0.0, &ro->shift_change_min);
+  opt_number (r, o, "meal_min", CC (0, 180, "min"), 0.0, &ro->meal_min);
+  gboolean after_ok
+      = opt_number (r, o, "meal_after_h", CO (0, 24, "h"), 5.0, &ro->meal_after_h);
+  /* the meal must start within every shift (only when there are meals) */
+  if (after_ok && ss.fields_ok && ro->meal_min > 0.0)
+    for (guint i = 0; i < ro->n_shifts; i++)
+      if (!(ro->meal_after_h < ro->shifts[i].hours))
+        {
+          g_autofree char *nm = shown (ro->shifts[i].name);
+          gsize m2 = path_key (r, "meal_after_h");
+          invalid (r, "expected less than the %s h of shift %s (the meal must start within "
+                      "the shift), found %s",
+                   num (ro->shifts[i].hours).s, nm, num (ro->meal_after_h).s);
+          path_pop (r, m2);
+        }
+  read_bool (r, o, "hot_seat", FALSE, &ro->hot_seat);
+  opt_number (r, o, "night_factor", OC (0, 1.5, ""), 1.0, &ro->night_factor);
+  read_weather (r, o, ro);
+  path_pop (r, mark);
+}
+
+/* ==== simulation =========================================================== */
+
+/* obj.key as an ISO 8601 date-time with an explicit UTC offset ("Z" or
+ * "+10:00"); NULL when absent or on a problem.  Returns a new reference. */
+static GDateTime *
+read_datetime (Reader *r, const cJSON *obj, const char *key, gboolean required)
+{
+  const char *text = read_string (r, obj, key, required, TRUE, NULL);
+  if (!text)
+    return NULL;
+  /* with no default zone, text without an offset gives NULL */
+  GDateTime *dt = g_date_time_new_from_iso8601 (text, NULL);
+  if (!dt)
+    {
+      g_autofree char *q = quoted (text);
+      gsize mark = path_key (r, key);
+      invalid (r, "expected an ISO 8601 date-time with a UTC offset, such as "
+                  "\"2027-03-01T06:00:00+10:00\", found %s",
+               q);
+      path_pop (r, mark);
+    }
+  return dt;
+}
+
+/* simulation.blasts into s->blast_h (hours after s->start; 0 for blocks not
+ * named and for blasts at or before the start).  have_start FALSE: the start
+ * was invalid, so hours are not computed. */
+static void
+read_blasts (Reader *r, const cJSON *o, SfSimulation *s, guint n_blocks, gboolean have_start)
+{
+  static const char *const keys[] = { "first_block", "last_block", "at", NULL };
+  const cJSON *arr = read_array (r, o, "blasts", FALSE);
+  if (!arr)
+    return;
+  gsize mark = path_key (r, "blasts");
+  int n = cJSON_GetArraySize (arr);
+  if (n > SF_MAX_BLOCKS)
+    {
+      invalid (r, "expected at most %d blasts, found %d; the limit is %d blocks", SF_MAX_BLOCKS,
+               n, SF_MAX_BLOCKS);
+      path_pop (r, mark);
+      return;
+    }
+  /* without a valid block count, check against the limit only */
+  guint hi = n_blocks ? n_blocks - 1 : SF_MAX_BLOCKS - 1;
+  g_autofree gint *named_by = g_new (gint, hi + 1); /* blast naming each block, -1: none */
+  for (guint k = 0; k <= hi; k++)
+    named_by[k] = -1;
+  guint i = 0;
+  const cJSON *b;
+  cJSON_ArrayForEach (b, arr)
+  {
+    gsize m2 = path_index (r, i);
+    gint me = (gint)i++;
+    if (!cJSON_IsObject (b))
+      {
+        invalid (r, "expected an object, found %s", kind_text (b));
+        path_pop (r, m2);
+        continue;
+      }
+    check_keys (r, b, keys);
+    guint first = 0, last = 0;
+    gboolean first_ok = read_uint (r, b, "first_block", 0, hi, NULL, TRUE, 0, &first);
+    gboolean last_ok = read_uint (r, b, "last_block", 0, hi, NULL, TRUE, 0, &last);
+    g_autoptr (GDateTime) at = read_datetime (r, b, "at", TRUE);
+    if (first_ok && last_ok && last < first)
+      {
+        gsize m3 = path_key (r, "last_block");
+        invalid (r, "expected an integer >= first_block (%u), found %u (the range is reversed)",
+                 first, last);
+        path_pop (r, m3);
+      }
+    else if (first_ok && last_ok)
+      {
+        guint n_twice = 0, twice = 0;
+        gint other = -1;
+        for (guint k = first; k <= last; k++)
+          if (named_by[k] < 0)
+            named_by[k] = me;
+          else if (n_twice++ == 0)
+            {
+              twice = k;
+              other = named_by[k];
+            }
+        if (n_twice)
+          {
+            g_autofree char *more
+                = n_twice > 1 ? g_strdup_printf (" (and %u more blocks of this range)", n_twice - 1)
+                              : g_strdup ("");
+            invalid (r, "block %u is already named by blasts[%d]%s; name each block in one blast "
+                        "at most",
+                     twice, other, more);
+          }
+        if (at && have_start && s->blast_h)
+          {
+            double h = (double)g_date_time_difference (at, s->start) / (double)G_TIME_SPAN_HOUR;
+            for (guint k = first; k <= last; k++)
+              if (named_by[k] == me)
+                s->blast_h[k] = MAX (h, 0.0);
+          }
+      }
+    path_pop (r, m2);
+  }
+  path_pop (r, mark);
+}
+
+static void
+read_simulation (Reader *r, const cJSON *root, SfScenario *sc, const StripState *st)
+{
+  static const char *const keys[] = { "start", "seed", "horizon_days", "dispatch",
+                                      "min_separation_lanes", "max_slice_lead",
+                                      "tram_speed_kmh", "fitters", "blasts", NULL };
+  static const char *const dispatches[] = { "finish-block", "spread" };
+  G_STATIC_ASSERT (SF_DISPATCH_FINISH_BLOCK == 0 && SF_DISPATCH_SPREAD == 1);
+  SfSimulation *s = &sc->sim;
+  guint n_blocks = st->blocks_ok ? sc->strip.n_blocks : 0;
+  sf_simulation_clear (s);
+  sf_simulation_defaults (s, n_blocks);
+  const cJSON *o = read_object (r, root, "simulation", FALSE);
+  if (!o)
+    return;
+  gsize mark = path_key (r, "simulation");
+  check_keys (r, o, keys);
+  gboolean start_ok = TRUE;
+  if (member (o, "start"))
+    {
+      GDateTime *start = read_datetime (r, o, "start", TRUE);
+      if (start)
+        {
+          g_date_time_unref (s->start);
+          s->start = start;
+        }
+      else
+        start_ok = FALSE;
+    }
+  const cJSON *seed = member (o, "seed");
+  if (seed)
+    {
+      gint64 v = 0;
+      gsize m2 = path_key (r, "seed");
+      if (check_int (r, seed, 0, G_GINT64_CONSTANT (1) << 53, NULL, TRUE, &v))
+        s->seed = (guint64)v;
+      path_pop (r, m2);
+    }
+  opt_number (r, o, "horizon_days", OC (0, 36500, "days"), 3650.0, &s->horizon_days);
+  guint dispatch = 0;
+  read_enum (r, o, "dispatch", dispatches, G_N_ELEMENTS (dispatches), FALSE, 0, &dispatch);
+  s->dispatch = (SfDispatch)dispatch;
+  read_uint (r, o, "min_separation_lanes", 0, SF_MAX_LANES_PER_BLOCK, "lanes", FALSE, 1,
+             &s->min_separation_lanes);
+  read_uint (r, o, "max_slice_lead", 0, SF_MAX_LAYERS, "slices", FALSE, 1, &s->max_slice_lead);
+  opt_number (r, o, "tram_speed_kmh", OC (0, 30, "km/h"), 5.0, &s->tram_speed_kmh);
+  if (read_uint (r, o, "fitters", 0, 1000, NULL, FALSE, 2, &s->fitters) && s->fitters == 0)
+    for (guint i = 0; i < sc->classes->len; i++)
+      {
+        const SfDozerClass *c = g_ptr_array_index (sc->classes, i);
+        if (!c->reliability.failures)
+          continue;
+        g_autofree char *q = quoted (c->name);
+        gsize m2 = path_key (r, "fitters");
+        invalid (r, "expected at least 1 fitter because dozer class %s can fail "
+                    "(dozer_classes[%u].reliability.tbf_h), found 0",
+                 q, i);
+        path_pop (r, m2);
+        break;
+      }
+  read_blasts (r, o, s, n_blocks, start_ok);
+  path_pop (r, mark);
+}
+
 /* ==== the whole file ======================================================= */
 
 /* 1-based line and column (in characters) of byte offset `off` in text. */
@@ -1757,7 +2571,8 @@ load_text (const char *text, gsize len, const char *label, const char *base_dir,
     {
       static const char *const keys[] = { "format", "name", "description", "strip", "sections",
                                           "material", "dozer_classes", "fleet", "design",
-                                          "production_factors", "coal", NULL };
+                                          "production_factors", "coal", "roster",
+                                          "simulation", NULL };
       check_keys (&r, root, keys);
       const cJSON *fmt = member (root, "format");
       if (!cJSON_IsString (fmt) || g_strcmp0 (fmt->valuestring, SF_SCENARIO_FORMAT) != 0)
@@ -1780,6 +2595,10 @@ load_text (const char *text, gsize len, const char *label, const char *base_dir,
       read_design (&r, root, &sc->design);
       read_factors (&r, root, &sc->factors);
       read_coal (&r, root, sc);
+      /* after the fleet (roster default: an operator per dozer) and the
+       * classes (fitters against failures) */
+      read_roster (&r, root, sc);
+      read_simulation (&r, root, sc, &st);
     }
 
   if (r.n_problems == 0)

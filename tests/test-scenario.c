@@ -8,11 +8,19 @@
  * corpus tests/bad/ is refused with the expected error code, line count and
  * message fragment (one cmocka test per table row, json-glib style); the
  * corpus and the table list the same files; messages are one line per
- * problem, each naming the file; the problem cap.
+ * problem, each naming the file; the problem cap.  The simulation parts:
+ * reliability, roster and simulation of the demo come back as written; the
+ * defaults when they are absent (one 24 h shift, one crew, every block
+ * workable at the start); shifts stored in start order with the pattern
+ * columns following them; every distribution kind; blast hours across UTC
+ * offsets.
  *
  * Sources of expected values are named beside each check: "round trip" means
  * the value written in the scenario file; "spec" means the documented
- * default of docs/scenario-format.md; "analytic" is plain arithmetic.
+ * default of docs/scenario-format.md; "analytic" is plain arithmetic;
+ * "Python datetime" means the value was computed offline with the Python 3
+ * standard library (datetime.fromisoformat, timestamp()), a general-purpose
+ * reference implementation of ISO 8601 date-times with offsets.
  */
 #include "sf-test.h"
 
@@ -452,6 +460,311 @@ test_csv_relative_to_base_dir (void **state)
     }
 }
 
+/* ---- reliability, roster, simulation -------------------------------------- */
+
+static SfScenario *
+load_ok (const char *json)
+{
+  g_autoptr (GError) err = NULL;
+  SfScenario *sc = load_text (json, &err);
+  if (err)
+    print_error ("%s\n", err->message);
+  assert_non_null (sc);
+  return sc;
+}
+
+static void
+assert_dist (const SfDist *d, SfDistKind kind, double mean, double sd, double shape, double scale)
+{
+  assert_int_equal (d->kind, kind);
+  sf_assert_close (d->mean, mean, 0, 0);
+  sf_assert_close (d->sd, sd, 0, 0);
+  sf_assert_close (d->shape, shape, 0, 0);
+  sf_assert_close (d->scale, scale, 0, 0);
+}
+
+static void
+test_demo_roster_and_simulation_round_trip (void **state)
+{
+  (void)state;
+  g_autoptr (GError) err = NULL;
+  g_autoptr (SfScenario) sc = load_source_file ("scenarios/demo-strip.json", &err);
+  if (err)
+    print_error ("%s\n", err->message);
+  assert_non_null (sc);
+  /* round trip: the unmanned dozer is documented in the description */
+  assert_non_null (strstr (sf_scenario_get_description (sc), "one dozer stands unmanned"));
+
+  /* reliability, round trip: 90 h (semi-U class 110 h) exponential between
+   * failures, lognormal repairs 5 h mean 3 h sd, 250 h services of 8 h,
+   * 20 min refuelling */
+  for (guint i = 0; i < sf_scenario_get_n_classes (sc); i++)
+    {
+      const SfDozerClass *c = g_ptr_array_index (sc->classes, i);
+      const SfReliability *rel = &c->reliability;
+      assert_true (rel->failures);
+      double tbf = strcmp (c->name, "semi-u-70t") == 0 ? 110.0 : 90.0;
+      assert_dist (&rel->tbf_h, SF_DIST_EXPONENTIAL, tbf, 0, 0, 0);
+      assert_dist (&rel->ttr_h, SF_DIST_LOGNORMAL, 5.0, 3.0, 0, 0);
+      sf_assert_close (rel->service_interval_h, 250.0, 0, 0);
+      sf_assert_close (rel->service_h, 8.0, 0, 0);
+      sf_assert_close (rel->refuel_min, 20.0, 0, 0);
+    }
+
+  /* roster, round trip */
+  const SfRoster *ro = &sc->roster;
+  assert_int_equal (ro->n_shifts, 2);
+  assert_string_equal (ro->shifts[0].name, "day");
+  assert_string_equal (ro->shifts[1].name, "night");
+  assert_int_equal (ro->shifts[0].start_min, 360);  /* analytic: 06:00 = 6 x 60 min */
+  assert_int_equal (ro->shifts[1].start_min, 1080); /* analytic: 18:00 = 18 x 60 min */
+  sf_assert_close (ro->shifts[0].hours, 12.0, 0, 0);
+  sf_assert_close (ro->shifts[1].hours, 12.0, 0, 0);
+  assert_false (ro->shifts[0].night);
+  assert_true (ro->shifts[1].night);
+  assert_int_equal (ro->n_crews, 4);
+  static const char *const crew_names[] = { "A", "B", "C", "D" };
+  static const double skills[] = { 1.0, 0.95, 1.0, 0.97 };
+  for (guint i = 0; i < 4; i++)
+    {
+      assert_string_equal (ro->crews[i].name, crew_names[i]);
+      assert_int_equal (ro->crews[i].operators, 5);
+      sf_assert_close (ro->crews[i].skill, skills[i], 0, 0);
+    }
+  /* pattern indices, round trip: days 1-4 A day / C night, days 5-8 B day /
+   * D night; stored by day, shifts in start order */
+  assert_int_equal (ro->pattern_days, 8);
+  assert_non_null (ro->pattern);
+  for (guint d = 0; d < 8; d++)
+    {
+      assert_int_equal (ro->pattern[d * 2 + 0], d < 4 ? 0 : 1);
+      assert_int_equal (ro->pattern[d * 2 + 1], d < 4 ? 2 : 3);
+    }
+  sf_assert_close (ro->shift_change_min, 20.0, 0, 0);
+  sf_assert_close (ro->meal_min, 30.0, 0, 0);
+  sf_assert_close (ro->meal_after_h, 5.0, 0, 0);
+  assert_false (ro->hot_seat);
+  sf_assert_close (ro->night_factor, 0.95, 0, 0);
+  sf_assert_close (ro->wet_day_probability, 0.06, 0, 0);
+  assert_dist (&ro->wet_stop_h, SF_DIST_LOGNORMAL, 5.0, 3.0, 0, 0);
+
+  /* simulation, round trip */
+  const SfSimulation *sim = &sc->sim;
+  assert_non_null (sim->start);
+  assert_int_equal (g_date_time_get_year (sim->start), 2027);
+  assert_int_equal (g_date_time_get_month (sim->start), 3);
+  assert_int_equal (g_date_time_get_day_of_month (sim->start), 1);
+  assert_int_equal (g_date_time_get_hour (sim->start), 6);
+  assert_true (g_date_time_get_utc_offset (sim->start) == 10 * G_TIME_SPAN_HOUR);
+  /* Python datetime: 2027-03-01T06:00:00+10:00 is Unix time 1803844800 */
+  assert_true (g_date_time_to_unix (sim->start) == G_GINT64_CONSTANT (1803844800));
+  assert_true (sim->seed == 42);
+  sf_assert_close (sim->horizon_days, 365.0, 0, 0);
+  assert_int_equal (sim->dispatch, SF_DISPATCH_FINISH_BLOCK);
+  assert_int_equal (sim->min_separation_lanes, 1);
+  assert_int_equal (sim->max_slice_lead, 1);
+  sf_assert_close (sim->tram_speed_kmh, 5.0, 0, 0);
+  assert_int_equal (sim->fitters, 2);
+  assert_non_null (sim->blast_h);
+  /* Python datetime: 2027-03-08T07:00+10:00 is 169 h after the start,
+   * 2027-03-15T07:00+10:00 is 337 h after (analytic: 7 x 24 + 1, 14 x 24 + 1) */
+  for (guint b = 0; b < 30; b++)
+    sf_assert_close (sim->blast_h[b], b < 10 ? 0.0 : b < 20 ? 169.0 : 337.0, 0, 0);
+}
+
+/* Without "roster", "simulation" and "reliability" the documented defaults
+ * apply. */
+static void
+test_roster_and_simulation_defaults_when_absent (void **state)
+{
+  (void)state;
+  g_autofree char *json = minimal_with (NULL, NULL);
+  g_autoptr (SfScenario) sc = load_ok (json);
+
+  /* spec: a class without reliability never fails, no services, no refuelling */
+  const SfDozerClass *c = class_named (sc, "c1");
+  assert_false (c->reliability.failures);
+  sf_assert_close (c->reliability.service_interval_h, 0.0, 0, 0);
+  sf_assert_close (c->reliability.refuel_min, 0.0, 0, 0);
+
+  /* spec: one 24 h shift "all-day" from 00:00, one crew "all" with an
+   * operator for each of the 2 dozers of the fleet, skill 1, a one-day
+   * pattern, no change time, no meals, night factor 1, no weather */
+  const SfRoster *ro = &sc->roster;
+  assert_int_equal (ro->n_shifts, 1);
+  assert_string_equal (ro->shifts[0].name, "all-day");
+  assert_int_equal (ro->shifts[0].start_min, 0);
+  sf_assert_close (ro->shifts[0].hours, 24.0, 0, 0);
+  assert_false (ro->shifts[0].night);
+  assert_int_equal (ro->n_crews, 1);
+  assert_string_equal (ro->crews[0].name, "all");
+  assert_int_equal (ro->crews[0].operators, 2);
+  sf_assert_close (ro->crews[0].skill, 1.0, 0, 0);
+  assert_int_equal (ro->pattern_days, 1);
+  assert_non_null (ro->pattern);
+  assert_int_equal (ro->pattern[0], 0);
+  sf_assert_close (ro->shift_change_min, 0.0, 0, 0);
+  sf_assert_close (ro->meal_min, 0.0, 0, 0);
+  assert_false (ro->hot_seat);
+  sf_assert_close (ro->night_factor, 1.0, 0, 0);
+  sf_assert_close (ro->wet_day_probability, 0.0, 0, 0);
+
+  /* spec: start 2027-01-04T06:00:00+00:00, seed 1, 3650 days, finish-block,
+   * separation 1, lead 1, 5 km/h, 2 fitters, every block workable at once */
+  const SfSimulation *sim = &sc->sim;
+  assert_non_null (sim->start);
+  assert_true (g_date_time_get_utc_offset (sim->start) == 0);
+  /* Python datetime: 2027-01-04T06:00:00+00:00 is Unix time 1799042400 (a Monday) */
+  assert_true (g_date_time_to_unix (sim->start) == G_GINT64_CONSTANT (1799042400));
+  assert_int_equal (g_date_time_get_day_of_week (sim->start), 1);
+  assert_true (sim->seed == 1);
+  sf_assert_close (sim->horizon_days, 3650.0, 0, 0);
+  assert_int_equal (sim->dispatch, SF_DISPATCH_FINISH_BLOCK);
+  assert_int_equal (sim->min_separation_lanes, 1);
+  assert_int_equal (sim->max_slice_lead, 1);
+  sf_assert_close (sim->tram_speed_kmh, 5.0, 0, 0);
+  assert_int_equal (sim->fitters, 2);
+  assert_non_null (sim->blast_h);
+  for (guint b = 0; b < 4; b++)
+    sf_assert_close (sim->blast_h[b], 0.0, 0, 0); /* spec: blast_h all 0 */
+
+  /* spec: optional members of a given roster and simulation default too */
+  g_autofree char *json2 = minimal_with (
+    "\"roster\": { \"shifts\": [ { \"name\": \"s\", \"start\": \"07:30\", \"hours\": 24 } ],"
+    " \"crews\": [ { \"name\": \"x\", \"operators\": 1 } ], \"pattern\": [ [\"x\"] ] },"
+    " \"simulation\": { \"seed\": 9007199254740992 },", NULL);
+  g_autoptr (SfScenario) sc2 = load_ok (json2);
+  assert_int_equal (sc2->roster.shifts[0].start_min, 450); /* analytic: 7 x 60 + 30 */
+  assert_false (sc2->roster.shifts[0].night);
+  sf_assert_close (sc2->roster.crews[0].skill, 1.0, 0, 0);
+  sf_assert_close (sc2->roster.meal_after_h, 5.0, 0, 0);
+  sf_assert_close (sc2->roster.night_factor, 1.0, 0, 0);
+  sf_assert_close (sc2->roster.wet_day_probability, 0.0, 0, 0);
+  assert_true (sc2->sim.seed == G_GUINT64_CONSTANT (9007199254740992)); /* spec: up to 2^53 */
+  assert_true (g_date_time_to_unix (sc2->sim.start) == G_GINT64_CONSTANT (1799042400));
+  assert_int_equal (sc2->sim.fitters, 2);
+}
+
+/* The *_defaults and *_clear functions used by code that builds a scenario
+ * without a file. */
+static void
+test_defaults_and_clear_in_code (void **state)
+{
+  (void)state;
+  SfRoster r = { 0 };
+  sf_roster_defaults (&r, 6);
+  assert_int_equal (r.crews[0].operators, 6); /* spec: operators = fleet size */
+  assert_int_equal (r.pattern_days, 1);
+  sf_roster_clear (&r);
+  assert_null (r.pattern);
+  assert_null (r.shifts[0].name);
+  sf_roster_clear (&r); /* a second clear is harmless */
+
+  SfSimulation s = { 0 };
+  sf_simulation_defaults (&s, 0);
+  assert_null (s.blast_h); /* no blocks, no table */
+  assert_non_null (s.start);
+  sf_simulation_clear (&s);
+  assert_null (s.start);
+  sf_simulation_defaults (&s, 3);
+  sf_assert_close (s.blast_h[2], 0.0, 0, 0); /* spec: every block workable at the start */
+  sf_simulation_clear (&s);
+  sf_simulation_clear (&s);
+}
+
+/* Shifts given in any rotation of the day are stored in start order; the
+ * pattern columns (given in the order of "shifts") follow them. */
+static void
+test_shifts_stored_in_start_order (void **state)
+{
+  (void)state;
+  g_autofree char *json = minimal_with (
+    "\"roster\": {"
+    " \"shifts\": [ { \"name\": \"night\", \"start\": \"22:00\", \"hours\": 8, \"night\": true },"
+    "              { \"name\": \"day\", \"start\": \"06:00\", \"hours\": 8 },"
+    "              { \"name\": \"evening\", \"start\": \"14:00\", \"hours\": 8 } ],"
+    " \"crews\": [ { \"name\": \"N\", \"operators\": 2 }, { \"name\": \"D\", \"operators\": 2 },"
+    "             { \"name\": \"E\", \"operators\": 1, \"skill\": 0.9 } ],"
+    " \"pattern\": [ [\"N\", \"D\", \"E\"], [null, \"D\", \"E\"] ],"
+    " \"meal_min\": 30, \"meal_after_h\": 4 },", NULL);
+  g_autoptr (SfScenario) sc = load_ok (json);
+  const SfRoster *ro = &sc->roster;
+  assert_int_equal (ro->n_shifts, 3);
+  /* analytic: day 06:00 = 360 min, evening 14:00 = 840, night 22:00 = 1320 */
+  assert_string_equal (ro->shifts[0].name, "day");
+  assert_int_equal (ro->shifts[0].start_min, 360);
+  assert_string_equal (ro->shifts[1].name, "evening");
+  assert_int_equal (ro->shifts[1].start_min, 840);
+  assert_string_equal (ro->shifts[2].name, "night");
+  assert_int_equal (ro->shifts[2].start_min, 1320);
+  assert_true (ro->shifts[2].night);
+  assert_false (ro->shifts[0].night);
+  /* round trip, columns in start order: day D (1), evening E (2), night N (0);
+   * null is SF_NO_CREW */
+  assert_int_equal (ro->pattern_days, 2);
+  static const guint8 want[2][3] = { { 1, 2, 0 }, { 1, 2, SF_NO_CREW } };
+  for (guint d = 0; d < 2; d++)
+    for (guint k = 0; k < 3; k++)
+      assert_int_equal (ro->pattern[d * 3 + k], want[d][k]);
+  sf_assert_close (ro->crews[2].skill, 0.9, 0, 0);
+  sf_assert_close (ro->meal_after_h, 4.0, 0, 0);
+}
+
+/* Every distribution kind loads with its own parameters (round trip); a
+ * service interval of 0 switches services off and a given service_h is only
+ * checked; weather with probability 0 needs no stop_h. */
+static void
+test_distribution_kinds_load (void **state)
+{
+  (void)state;
+  g_autoptr (GString) cls = g_string_new (U_CLASS);
+  g_string_append (cls, ", \"reliability\": {"
+                        " \"tbf_h\": { \"dist\": \"weibull\", \"shape\": 1.5, \"scale\": 90 },"
+                        " \"ttr_h\": { \"dist\": \"fixed\", \"mean\": 4 },"
+                        " \"service_interval_h\": 0, \"service_h\": 8 }");
+  g_autofree char *json = minimal_with (
+    "\"roster\": { \"shifts\": [ { \"name\": \"a\", \"start\": \"00:00\", \"hours\": 24 } ],"
+    " \"crews\": [ { \"name\": \"x\", \"operators\": 2 } ], \"pattern\": [ [\"x\"] ],"
+    " \"weather\": { \"wet_day_probability\": 0 } },"
+    " \"simulation\": { \"dispatch\": \"spread\", \"fitters\": 1 },",
+    cls->str);
+  g_autoptr (SfScenario) sc = load_ok (json);
+  const SfReliability *rel = &class_named (sc, "c1")->reliability;
+  assert_true (rel->failures);
+  assert_dist (&rel->tbf_h, SF_DIST_WEIBULL, 0, 0, 1.5, 90.0);
+  assert_dist (&rel->ttr_h, SF_DIST_FIXED, 4.0, 0, 0, 0);
+  sf_assert_close (rel->service_interval_h, 0.0, 0, 0);
+  sf_assert_close (rel->service_h, 8.0, 0, 0);
+  sf_assert_close (sc->roster.wet_day_probability, 0.0, 0, 0);
+  assert_int_equal (sc->sim.dispatch, SF_DISPATCH_SPREAD);
+  assert_int_equal (sc->sim.fitters, 1);
+
+  /* fitters 0 is fine when no class can fail (spec) */
+  g_autofree char *json2 = minimal_with ("\"simulation\": { \"fitters\": 0 },", NULL);
+  g_autoptr (SfScenario) sc2 = load_ok (json2);
+  assert_int_equal (sc2->sim.fitters, 0);
+}
+
+/* Blast times are hours after the start whatever the offsets of the two
+ * date-times; blasts before the start and blocks not named give 0. */
+static void
+test_blast_hours_across_offsets (void **state)
+{
+  (void)state;
+  g_autofree char *json = minimal_with (
+    "\"simulation\": { \"start\": \"2027-03-01T06:00:00+10:00\", \"blasts\": ["
+    " { \"first_block\": 1, \"last_block\": 1, \"at\": \"2027-03-01T00:00:00Z\" },"
+    " { \"first_block\": 2, \"last_block\": 2, \"at\": \"2027-02-20T00:00:00+10:00\" },"
+    " { \"first_block\": 3, \"last_block\": 3, \"at\": \"2027-03-02T06:30:00+09:30\" } ] },",
+    NULL);
+  g_autoptr (SfScenario) sc = load_ok (json);
+  const double *h = sc->sim.blast_h;
+  sf_assert_close (h[0], 0.0, 0, 0);  /* spec: not named, workable at the start */
+  sf_assert_close (h[1], 4.0, 0, 0);  /* Python datetime: 00:00Z is 10:00+10:00, 4 h after */
+  sf_assert_close (h[2], 0.0, 0, 0);  /* Python datetime: 222 h before the start; spec: 0 */
+  sf_assert_close (h[3], 25.0, 0, 0); /* Python datetime: 06:30+09:30 next day, 25 h after */
+}
+
 /* ---- messages ------------------------------------------------------------- */
 
 static void
@@ -611,6 +924,44 @@ static const BadCase bad_cases[] = {
   { "63-csv-short-span.json", INV, 1, "63-csv-short-span.csv: surface: must end at or after x = 100 m (section_x_max_m), ends at x = 90 m" },
   { "64-empty-file.json", SYN, 1, "64-empty-file.json:1:1: not valid JSON" },
   { "65-not-utf8.json", SYN, 1, "65-not-utf8.json:3:15: not valid JSON (not UTF-8 text)" },
+  /* roster, reliability, simulation (/work/notes/scenario-spec-sim.md rules,
+   * docs/scenario-format.md); hours of gaps and overlaps are analytic */
+  { "66-shifts-overlap.json", INV, 1, "roster.shifts: shifts day and night overlap by 2.0 h: day runs 14 h from 06:00 to 20:00, night starts at 18:00" },
+  { "67-shifts-gap.json", INV, 1, "roster.shifts: shifts leave a gap of 1.0 h between day and night: day runs 11 h from 06:00 to 17:00" },
+  { "68-shift-hours-not-24.json", INV, 1, "roster.shifts: the shifts add up to 20 h a day, expected exactly 24 h" },
+  { "69-pattern-unknown-crew.json", INV, 1, "roster.pattern[1][1]: expected the name of a crew (\"A\", \"B\", \"C\", \"D\") or null, found \"E\"" },
+  { "70-pattern-row-length.json", INV, 1, "roster.pattern[0]: expected 2 entries, one crew name or null per shift (day, night), found 3" },
+  { "71-dist-negative-mean.json", INV, 1, "dozer_classes[0].reliability.tbf_h.mean: impossible parameters for dist \"exponential\": expected a number in (0, 100000] h, found -80" },
+  { "72-weibull-shape-zero.json", INV, 1, "dozer_classes[0].reliability.tbf_h.shape: impossible parameters for dist \"weibull\": expected a number in (0.1, 20], found 0" },
+  { "73-lognormal-without-sd.json", INV, 1, "dozer_classes[0].reliability.ttr_h.sd: impossible parameters for dist \"lognormal\": expected a number in (0, 100000] h, found nothing" },
+  { "74-dist-two-kinds.json", INV, 1, "dozer_classes[0].reliability.tbf_h.shape: only allowed when dist is \"weibull\", found it with dist \"exponential\"" },
+  { "75-ttr-without-tbf.json", INV, 1, "dozer_classes[0].reliability.ttr_h: only allowed together with tbf_h" },
+  { "76-tbf-without-ttr.json", INV, 1, "dozer_classes[0].reliability.ttr_h: expected a distribution object (repair hours, required with tbf_h), found nothing" },
+  { "77-service-without-hours.json", INV, 1, "dozer_classes[0].reliability.service_h: expected a number in (0, 1000] h, found nothing" },
+  { "78-start-without-offset.json", INV, 1, "simulation.start: expected an ISO 8601 date-time with a UTC offset, such as \"2027-03-01T06:00:00+10:00\", found \"2027-03-01T06:00:00\"" },
+  { "79-blast-range-reversed.json", INV, 1, "simulation.blasts[0].last_block: expected an integer >= first_block (3), found 1 (the range is reversed)" },
+  { "80-blast-block-twice.json", INV, 1, "simulation.blasts[1]: block 2 is already named by blasts[0]; name each block in one blast at most" },
+  { "81-fitters-zero-with-failures.json", INV, 1, "simulation.fitters: expected at least 1 fitter because dozer class \"u-100t\" can fail" },
+  { "82-horizon-out-of-range.json", INV, 1, "simulation.horizon_days: expected a number in (0, 36500] days, found 40000" },
+  { "83-pattern-too-long.json", INV, 1, "roster.pattern: expected at most 366 days, found 367; the limit is 366 pattern days" },
+  { "84-too-many-shifts.json", INV, 1, "roster.shifts: expected at most 4 shifts, found 5; the limit is 4 shifts a day" },
+  { "85-shift-start-bad.json", INV, 1, "roster.shifts[1].start: expected a time of day \"HH:MM\" from 00:00 to 23:59, found \"18.00\"" },
+  { "86-duplicate-crew.json", INV, 1, "roster.crews[1].name: crew name \"A\" is already used by crews[0]" },
+  { "87-meal-after-too-late.json", INV, 1, "roster.meal_after_h: expected less than the 4 h of shift early (the meal must start within the shift), found 5" },
+  { "88-wet-without-stop.json", INV, 1, "roster.weather.stop_h: expected a distribution object (hours of a wet-weather stop, required when wet_day_probability > 0), found nothing" },
+  { "89-unknown-roster-key.json", INV, 1, "roster.shift_change: unknown key; expected one of shifts, crews, pattern, shift_change_min," },
+  { "90-dispatch-unknown.json", INV, 1, "simulation.dispatch: expected one of \"finish-block\", \"spread\", found \"nearest\"" },
+  { "91-blast-block-out-of-range.json", INV, 1, "simulation.blasts[0].last_block: expected an integer in 0..3, found 4" },
+  { "92-dist-unknown-kind.json", INV, 1, "dozer_classes[0].reliability.tbf_h.dist: expected one of \"fixed\", \"exponential\", \"weibull\", \"lognormal\", found \"gamma\"" },
+  { "93-seed-not-integer.json", INV, 1, "simulation.seed: expected an integer in 0..9007199254740992, found 1.5" },
+  { "94-crew-operators-over-limit.json", INV, 1, "roster.crews[0].operators: expected an integer in 0..500, found 501; the limit is 500 operators" },
+  { "95-blast-at-not-a-date.json", INV, 1, "simulation.blasts[0].at: expected an ISO 8601 date-time with a UTC offset" },
+  { "96-roster-missing-pattern.json", INV, 1, "roster.pattern: expected an array, found nothing (the key is missing)" },
+  { "97-pattern-empty.json", INV, 1, "roster.pattern: expected at least one day, found none" },
+  { "98-refuel-out-of-range.json", INV, 1, "dozer_classes[0].reliability.refuel_min: expected a number in [0, 240] min, found 300" },
+  { "99-weibull-huge-scale.json", INV, 1, "dozer_classes[0].reliability.tbf_h.scale: impossible parameters for dist \"weibull\": expected a number in (0, 100000] h, found 1000000" },
+  { "100-shift-name-duplicate.json", INV, 1, "roster.shifts[1].name: shift name \"day\" is already used by shifts[0]" },
+  { "101-roster-sim-three-problems.json", INV, 3, "simulation.fitters: expected an integer in 0..1000, found 1001" },
 };
 
 /* One table row: refused, right domain/code, the fragment, one line per
@@ -674,6 +1025,12 @@ main (void)
     cmocka_unit_test (test_design_variants_load),
     cmocka_unit_test (test_straight_blade_default_capacity),
     cmocka_unit_test (test_rated_capacity_given_wins),
+    cmocka_unit_test (test_demo_roster_and_simulation_round_trip),
+    cmocka_unit_test (test_roster_and_simulation_defaults_when_absent),
+    cmocka_unit_test (test_defaults_and_clear_in_code),
+    cmocka_unit_test (test_shifts_stored_in_start_order),
+    cmocka_unit_test (test_distribution_kinds_load),
+    cmocka_unit_test (test_blast_hours_across_offsets),
     cmocka_unit_test (test_inline_strings_section_loads),
     cmocka_unit_test (test_csv_relative_to_base_dir),
     cmocka_unit_test (test_invalid_json_names_line_and_column),
