@@ -2,15 +2,12 @@
  *
  * sf-study.c — block studies for the public API: the slice plan of a block,
  * and one lane of a block pushed out by one machine.  Wires the section,
- * slice and push modules together; owns nothing beyond the call.
+ * slice and push modules together; owns nothing beyond the call.  The
+ * wiring itself (SfStudyBlock, sf-study.h) is shared with the charts.
  */
 #include <math.h>
 
-#include "sf-push.h"
-#include "sf-scenario.h"
-#include "sf-section.h"
-#include "sf-slice.h"
-#include "stripfleet.h"
+#include "sf-study.h"
 
 static void
 design_with_options (const SfScenario *sc, const SfStudyOptions *opt, SfDesign *d)
@@ -50,14 +47,10 @@ sf_study_slice_plan (const SfScenario *sc, guint block, const SfStudyOptions *op
                      GError **error)
 {
   g_return_val_if_fail (sc != NULL, NULL);
-  SfDesign d;
-  design_with_options (sc, opt, &d);
-  g_autoptr (SfBlockSection) bs = study_section (sc, &d, block, error);
-  if (!bs)
+  g_autoptr (SfStudyBlock) sb = sf_study_block_new (sc, block, opt, error);
+  if (!sb)
     return NULL;
-  g_autoptr (SfSlicePlan) plan = sf_slice_plan_new (bs, &d, sc->strip.lane_width_m, error);
-  if (!plan)
-    return NULL;
+  const SfSlicePlan *plan = sb->plan;
   const double lcm2bcm = 1.0 / (1.0 + sc->material.swell);
   GArray *out = g_array_new (FALSE, TRUE, sizeof (SfSliceInfo));
   for (guint k = 0; k < plan->slices->len; k++)
@@ -80,11 +73,37 @@ sf_study_slice_plan (const SfScenario *sc, guint block, const SfStudyOptions *op
   return out;
 }
 
-GArray *
-sf_study_push_lane (const SfScenario *sc, guint block, guint lane, guint class_index,
-                    const SfStudyOptions *opt, SfLaneTotals *totals, GError **error)
+SfStudyBlock *
+sf_study_block_new (const SfScenario *sc, guint block, const SfStudyOptions *opt,
+                    GError **error)
 {
-  g_return_val_if_fail (sc != NULL && totals != NULL, NULL);
+  g_return_val_if_fail (sc != NULL, NULL);
+  g_autoptr (SfStudyBlock) sb = g_new0 (SfStudyBlock, 1);
+  design_with_options (sc, opt, &sb->design);
+  sb->section = study_section (sc, &sb->design, block, error);
+  if (!sb->section)
+    return NULL;
+  sb->plan = sf_slice_plan_new (sb->section, &sb->design, sc->strip.lane_width_m, error);
+  if (!sb->plan)
+    return NULL;
+  return g_steal_pointer (&sb);
+}
+
+void
+sf_study_block_free (SfStudyBlock *sb)
+{
+  if (!sb)
+    return;
+  sf_slice_plan_free (sb->plan);
+  sf_block_section_free (sb->section);
+  g_free (sb);
+}
+
+SfLane *
+sf_study_block_work_lane (const SfScenario *sc, const SfStudyBlock *sb, guint lane,
+                          guint class_index, GArray *out, SfLaneTotals *totals, GError **error)
+{
+  g_return_val_if_fail (sc != NULL && sb != NULL && out != NULL && totals != NULL, NULL);
   if (class_index >= sc->classes->len)
     {
       g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_ARGUMENT,
@@ -99,24 +118,32 @@ sf_study_push_lane (const SfScenario *sc, guint block, guint lane, guint class_i
                    sf_scenario_get_n_lanes (sc) - 1);
       return NULL;
     }
-  SfDesign d;
-  design_with_options (sc, opt, &d);
-  g_autoptr (SfBlockSection) bs = study_section (sc, &d, block, error);
-  if (!bs)
-    return NULL;
-  g_autoptr (SfSlicePlan) plan = sf_slice_plan_new (bs, &d, sc->strip.lane_width_m, error);
-  if (!plan)
-    return NULL;
+  const SfBlockSection *bs = sb->section;
   const SfDozerClass *c = g_ptr_array_index (sc->classes, class_index);
   SfPushMachine pm;
-  sf_push_machine_init (&pm, c, &sc->material, &d);
-  g_autoptr (SfLane) ln = sf_lane_new (bs->surface, bs->base, bs->n, bs->x0_m, bs->dx_m,
-                                       sc->strip.lane_width_m, bs->tan_repose);
+  sf_push_machine_init (&pm, c, &sc->material, &sb->design);
+  SfLane *ln = sf_lane_new (bs->surface, bs->base, bs->n, bs->x0_m, bs->dx_m,
+                            sc->strip.lane_width_m, bs->tan_repose);
   g_autofree double *spoil = g_new (double, bs->n);
   for (guint i = 0; i < bs->n; i++)
     spoil[i] = sf_block_section_spoil_line (bs, bs->x0_m + (i + 0.5) * bs->dx_m);
   ln->spoil_line = spoil;
-  GArray *out = g_array_new (FALSE, TRUE, sizeof (SfSliceResult));
-  sf_lane_work (&pm, ln, plan, &sc->factors, sc->material.swell, out, totals, NULL, NULL);
-  return out;
+  sf_lane_work (&pm, ln, sb->plan, &sc->factors, sc->material.swell, out, totals, NULL, NULL);
+  ln->spoil_line = NULL; /* borrowed from this call only */
+  return ln;
+}
+
+GArray *
+sf_study_push_lane (const SfScenario *sc, guint block, guint lane, guint class_index,
+                    const SfStudyOptions *opt, SfLaneTotals *totals, GError **error)
+{
+  g_return_val_if_fail (sc != NULL && totals != NULL, NULL);
+  g_autoptr (SfStudyBlock) sb = sf_study_block_new (sc, block, opt, error);
+  if (!sb)
+    return NULL;
+  g_autoptr (GArray) out = g_array_new (FALSE, TRUE, sizeof (SfSliceResult));
+  g_autoptr (SfLane) ln = sf_study_block_work_lane (sc, sb, lane, class_index, out, totals, error);
+  if (!ln)
+    return NULL;
+  return g_steal_pointer (&out);
 }

@@ -138,4 +138,27 @@ GArray *sf_study_slice_plan (const SfScenario *sc, guint block, const SfStudyOpt
 GArray *sf_study_push_lane (const SfScenario *sc, guint block, guint lane, guint class_index,
                             const SfStudyOptions *opt, SfLaneTotals *totals, GError **error);
 
+/* ---- charts: the block studies as PNG pictures ------------------------------ */
+
+/* Draws the cross-section of `block` under `opt` (may be NULL) with its
+ * slice plan — post-blast surface, natural surface level, base, coal roof,
+ * dozer floor, final spoil line, pivot, each slice's cut band and target in
+ * its own colour, a push arrow from the slice's cut to its fill — as a PNG
+ * written atomically to `png_path` (a temporary file beside it, renamed into
+ * place).  Fails with the study's SF_MODEL_ERROR, or with a G_FILE_ERROR
+ * naming png_path when it cannot be written; G_FILE_ERROR_NOSYS when the
+ * library was built without cairo.  The image says that it is a planning
+ * estimate, and "invented scenario" when the scenario's description says
+ * so.  The same input gives a byte-identical file. */
+gboolean sf_study_chart_plan (const SfScenario *sc, guint block, const SfStudyOptions *opt,
+                              const char *png_path, GError **error);
+
+/* Draws one lane of `block` worked out by one machine of class `class_index`
+ * (as sf_study_push_lane): the lane profile before and after with the floor,
+ * spoil line and pivot, and per worked slice a bar of bcm per operating hour
+ * with the mean push distance as a second series.  Writes and fails as
+ * sf_study_chart_plan(). */
+gboolean sf_study_chart_lane (const SfScenario *sc, guint block, guint lane, guint class_index,
+                              const SfStudyOptions *opt, const char *png_path, GError **error);
+
 G_END_DECLS

@@ -122,7 +122,7 @@ static GOptionEntry design_entries[] = {
   { "pivot", 'p', 0, G_OPTION_ARG_STRING, &opt_pivot,
     "Pivot: standard or lifted (default: as in the scenario)", "KIND" },
   { "lift-m", 0, 0, G_OPTION_ARG_DOUBLE, &opt_lift_m, "Lift of a lifted pivot, m", "H" },
-  { NULL }
+  G_OPTION_ENTRY_NULL
 };
 
 static gboolean
@@ -171,6 +171,13 @@ verb_plan (int argc, char **argv)
   g_option_context_set_summary (ctx, "Prints the ordered slices of one block, per lane: cut and "
                                      "fill volumes, centroid-to-centroid push distance and grade.");
   g_option_context_add_main_entries (ctx, design_entries, NULL);
+  g_autofree char *chart = NULL;
+  GOptionEntry chart_entries[] = {
+    { "chart", 0, 0, G_OPTION_ARG_FILENAME, &chart,
+      "Also draw the block's cross-section and slice plan as a PNG chart", "FILE.png" },
+    G_OPTION_ENTRY_NULL
+  };
+  g_option_context_add_main_entries (ctx, chart_entries, NULL);
   if (!parse_verb (ctx, "plan", &argc, &argv, 1))
     return SF_EXIT_USAGE;
   SfStudyOptions o;
@@ -203,6 +210,15 @@ verb_plan (int argc, char **argv)
     }
   printf ("%5s %-9s %8s %10.1f %10.1f %10s %10.1f\n", "all", "", "", tc, tb, "",
           tb > 0 ? wd / tb : 0.0);
+  if (chart)
+    {
+      if (!sf_study_chart_plan (sc, (guint) opt_block, &o, chart, &err))
+        {
+          g_printerr ("stripfleet plan: %s\n", err->message);
+          return SF_EXIT_RUNTIME;
+        }
+      printf ("\nchart written to %s\n", chart);
+    }
   printf ("\n%s", CAUTION);
   return SF_EXIT_OK;
 }
@@ -260,11 +276,15 @@ verb_lane (int argc, char **argv)
 {
   g_autoptr (GOptionContext) ctx
     = g_option_context_new ("SCENARIO - push one lane of a block to completion");
+  g_autofree char *chart = NULL;
   GOptionEntry entries[] = {
     { "lane", 'l', 0, G_OPTION_ARG_INT, &opt_lane, "Lane number within the block, from 0", "N" },
     { "class", 'c', 0, G_OPTION_ARG_STRING, &opt_class,
       "Dozer class name (default: the first class)", "NAME" },
-    { NULL }
+    { "chart", 0, 0, G_OPTION_ARG_FILENAME, &chart,
+      "Also draw the lane before and after and the production per slice as a PNG chart",
+      "FILE.png" },
+    G_OPTION_ENTRY_NULL
   };
   g_option_context_set_summary (ctx, "Works one lane of one block through its slice plan, push "
                                      "by push, with one dozer, and reports production per slice.");
@@ -294,6 +314,16 @@ verb_lane (int argc, char **argv)
   printf ("Block %d, lane %d of '%s', one %s dozer\n\n", opt_block, opt_lane,
           sf_scenario_get_name (sc), sf_scenario_get_class_name (sc, (guint) k));
   print_lane (res, &t);
+  if (chart)
+    {
+      if (!sf_study_chart_lane (sc, (guint) opt_block, (guint) opt_lane, (guint) k, &o, chart,
+                                &err))
+        {
+          g_printerr ("stripfleet lane: %s\n", err->message);
+          return SF_EXIT_RUNTIME;
+        }
+      printf ("\nchart written to %s\n", chart);
+    }
   printf ("\n%s", CAUTION);
   return SF_EXIT_OK;
 }
