@@ -910,3 +910,96 @@ sf_heights_max_loose_slope (const double *z, const double *base, guint n, double
     }
   return worst;
 }
+
+/* ---- face collapse -------------------------------------------------------- */
+
+/* Loss above and gain below the line of height c at cell `toe`, falling by
+ * `drop` per cell away from the high side (dir = +1: high side at smaller
+ * indices). */
+static void
+collapse_balance (const double *z, const double *base, guint n, gint toe, int dir, double drop,
+                  double c, double *loss, double *gain)
+{
+  double ls = 0, gn = 0;
+  for (gint j = toe - dir; j >= 0 && j < (gint) n; j -= dir)
+    {
+      double L = c + drop * (double) ((toe - j) * dir);
+      if (!(z[j] > L))
+        break;
+      double floor_j = base ? MAX (L, base[j]) : L;
+      if (z[j] > floor_j)
+        ls += z[j] - floor_j;
+    }
+  for (gint j = toe; j >= 0 && j < (gint) n; j += dir)
+    {
+      double L = c - drop * (double) ((j - toe) * dir);
+      if (!(z[j] < L))
+        break;
+      gn += L - z[j];
+    }
+  *loss = ls;
+  *gain = gn;
+}
+
+gboolean
+sf_heights_collapse_face (double *z, const double *base, guint n, double dx_m, double tan_repose,
+                          guint toe, int dir)
+{
+  if (n < 2 || toe >= n || (dir != 1 && dir != -1) || !(dx_m > 0) || !(tan_repose > 0))
+    return FALSE;
+  gint t = (gint) toe, hi = t - dir;
+  if (hi < 0 || hi >= (gint) n)
+    return FALSE;
+  const double drop = tan_repose * dx_m;
+  if (!(z[hi] - z[t] > drop * (1 + 1e-12)) || (base && !(z[hi] > base[hi])))
+    return FALSE;
+  /* The line's height at the toe, c, balances the loss above it with the
+   * gain below it; loss falls and gain rises with c. */
+  double a = z[t], b = z[hi] + drop;
+  for (int it = 0; it < 100 && b - a > 1e-12 * (1.0 + fabs (b)); it++)
+    {
+      double m = 0.5 * (a + b), ls, gn;
+      collapse_balance (z, base, n, t, dir, drop, m, &ls, &gn);
+      if (ls > gn)
+        a = m;
+      else
+        b = m;
+    }
+  const double c = 0.5 * (a + b);
+  /* Apply: cut the high side down to the line (never below base), fill the
+   * low side up to it; the last filled cell takes the rounding remainder. */
+  double ls = 0, gn = 0;
+  for (gint j = t - dir; j >= 0 && j < (gint) n; j -= dir)
+    {
+      double L = c + drop * (double) ((t - j) * dir);
+      if (!(z[j] > L))
+        break;
+      double floor_j = base ? MAX (L, base[j]) : L;
+      if (z[j] > floor_j)
+        {
+          ls += z[j] - floor_j;
+          z[j] = floor_j;
+        }
+    }
+  gint last = t;
+  for (gint j = t; j >= 0 && j < (gint) n; j += dir)
+    {
+      double L = c - drop * (double) ((j - t) * dir);
+      if (!(z[j] < L) || gn + (L - z[j]) > ls)
+        {
+          if (z[j] < L && gn < ls)
+            {
+              z[j] += ls - gn; /* part of a cell: the remainder */
+              gn = ls;
+              last = j;
+            }
+          break;
+        }
+      gn += L - z[j];
+      z[j] = L;
+      last = j;
+    }
+  if (gn < ls)
+    z[last] += ls - gn;
+  return TRUE;
+}

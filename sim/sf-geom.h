@@ -118,6 +118,17 @@ guint sf_heights_relax (double *z, const double *base, guint n, double dx_m, dou
 double sf_heights_deposit_face (double *z, guint n, double x0_m, double dx_m, guint i_crest,
                                 double z_top_m, double tan_repose, double area_m2, guint *i_front);
 
+/* Collapses a face of loose material steeper than the angle of repose in
+ * one step: the face whose low side starts at cell `toe` and whose high side
+ * lies at smaller indices (dir = +1) or larger ones (dir = -1) becomes a line
+ * at the angle of repose, placed so that what it takes from the high side
+ * (never below base, which may be NULL) equals what it adds on the low side.
+ * The cost follows the face's extent, not the profile's.  Used for the cut
+ * faces a push leaves; returns FALSE (nothing changed) when the face is not
+ * steeper than the angle of repose. */
+gboolean sf_heights_collapse_face (double *z, const double *base, guint n, double dx_m,
+                                   double tan_repose, guint toe, int dir);
+
 /* Largest |z[i+1]-z[i]| / dx over cells where the higher cell holds loose
  * material (z > base + tol; base may be NULL). */
 double sf_heights_max_loose_slope (const double *z, const double *base, guint n, double dx_m,

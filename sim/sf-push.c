@@ -265,7 +265,7 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const SfPushSpec *spec, Sf
         {
           /* Loading: the machine rides on the target it cuts to. */
           double g = grade_at (target, n, dx, i, k);
-          double e = z[i] - target[i];
+          double e = z[i] - MAX (target[i], lane->base[i]);
           double h = e > tol_m ? e : 0.0;
           double h_cut = MIN (h, h_edge);
           double take = 0;
@@ -360,7 +360,13 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const SfPushSpec *spec, Sf
       dirty_hi = MAX (dirty_hi, i_front + 2);
     }
 
-  /* Cut faces, drops and spill settle at the angle of repose. */
+  /* The faces the cut left behind the start and ahead of the last cut cell
+   * collapse at the angle of repose (built directly, not by relaxation);
+   * drops and spill then settle locally. */
+  if (i_s > 0)
+    sf_heights_collapse_face (z, lane->base, n, dx, lane->tan_repose, (guint) i_s, 1);
+  if ((guint) i_last_cut + 1 < n)
+    sf_heights_collapse_face (z, lane->base, n, dx, lane->tan_repose, (guint) i_last_cut, -1);
   sf_heights_relax (z, lane->base, n, dx, lane->tan_repose, dirty_lo, MIN (dirty_hi, n), 1e-9,
                     NULL, NULL);
 

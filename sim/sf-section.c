@@ -216,7 +216,7 @@ sf_section_generate (const SfSectionParams *p, const SfMaterial *m, double x0_m,
 /* Cross-section of one given spec on the grid. */
 typedef struct {
   double *surface, *base, *roof;
-  double x_toe, x_edge, bank, cast;
+  double x_toe, x_edge, bank, cast, coal_m;
 } Sampled;
 
 static void
@@ -235,9 +235,10 @@ sample_spec (const SfScenario *sc, const SfSectionSpec *spec, Sampled *out, GErr
   out->surface = g_new (double, n);
   out->base = g_new (double, n);
   out->roof = g_new (double, n);
-  out->bank = out->cast = 0;
+  out->bank = out->cast = out->coal_m = 0;
   if (spec->kind == SF_SECTION_GENERATED)
     {
+      out->coal_m = spec->params.coal_thickness_m;
       GError *e = NULL;
       if (!sf_section_generate (&spec->params, &sc->material, st->x_min_m, st->cell_m, n,
                                 out->surface, out->base, out->roof, &out->x_toe, &out->x_edge,
@@ -264,6 +265,37 @@ sample_spec (const SfScenario *sc, const SfSectionSpec *spec, Sampled *out, GErr
       out->base[i] = x < out->x_toe ? out->surface[i] : MIN (out->surface[i], out->roof[i]);
     }
   return TRUE;
+}
+
+struct _SfSectionSet {
+  guint n;          /* given sections */
+  Sampled *sampled; /* one per given section, in scenario order */
+};
+
+void
+sf_section_set_free (SfSectionSet *set)
+{
+  if (!set)
+    return;
+  for (guint k = 0; k < set->n; k++)
+    sampled_clear (&set->sampled[k]);
+  g_free (set->sampled);
+  g_free (set);
+}
+
+SfSectionSet *
+sf_section_set_new (const SfScenario *sc, GError **error)
+{
+  SfSectionSet *set = g_new0 (SfSectionSet, 1);
+  set->n = sc->sections->len;
+  set->sampled = g_new0 (Sampled, set->n);
+  for (guint k = 0; k < set->n; k++)
+    if (!sample_spec (sc, g_ptr_array_index (sc->sections, k), &set->sampled[k], error))
+      {
+        sf_section_set_free (set);
+        return NULL;
+      }
+  return set;
 }
 
 void
@@ -309,22 +341,43 @@ sf_block_section_new (const SfScenario *sc, guint block, GError **error)
                    sc->strip.n_blocks - 1);
       return NULL;
     }
+  g_autoptr (SfSectionSet) set = sf_section_set_new (sc, error);
+  if (!set)
+    return NULL;
+  return sf_block_section_new_from_set (set, sc, block, error);
+}
+
+SfBlockSection *
+sf_block_section_new_from_set (const SfSectionSet *set, const SfScenario *sc, guint block,
+                               GError **error)
+{
+  g_return_val_if_fail (sc != NULL && set != NULL, NULL);
+  if (block >= sc->strip.n_blocks)
+    {
+      g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_ARGUMENT,
+                   "block %u does not exist: the strip has blocks 0 to %u", block,
+                   sc->strip.n_blocks - 1);
+      return NULL;
+    }
   g_return_val_if_fail (sc->sections->len > 0, NULL);
 
   /* Nearest given sections at or below and at or above the block. */
-  const SfSectionSpec *lo = NULL, *hi = NULL;
+  gint ilo = -1, ihi = -1;
   for (guint k = 0; k < sc->sections->len; k++)
     {
       const SfSectionSpec *s = g_ptr_array_index (sc->sections, k);
       if (s->block <= block)
-        lo = s;
-      if (s->block >= block && !hi)
-        hi = s;
+        ilo = (gint) k;
+      if (s->block >= block && ihi < 0)
+        ihi = (gint) k;
     }
-  if (!lo)
-    lo = hi;
-  if (!hi)
-    hi = lo;
+  if (ilo < 0)
+    ilo = ihi;
+  if (ihi < 0)
+    ihi = ilo;
+  const SfSectionSpec *lo = g_ptr_array_index (sc->sections, ilo);
+  const SfSectionSpec *hi = g_ptr_array_index (sc->sections, ihi);
+  const Sampled *a = &set->sampled[ilo], *b = &set->sampled[ihi];
 
   const SfStrip *st = &sc->strip;
   g_autoptr (SfBlockSection) bs = g_new0 (SfBlockSection, 1);
@@ -334,47 +387,22 @@ sf_block_section_new (const SfScenario *sc, guint block, GError **error)
   bs->dx_m = st->cell_m;
   bs->tan_repose = tan (sf_deg2rad (sc->material.repose_deg));
 
-  Sampled a = { 0 }, b = { 0 };
-  if (!sample_spec (sc, lo, &a, error))
-    {
-      sampled_clear (&a);
-      return NULL;
-    }
-  if (hi != lo && !sample_spec (sc, hi, &b, error))
-    {
-      sampled_clear (&a);
-      sampled_clear (&b);
-      return NULL;
-    }
   double w = (hi != lo) ? (double) (block - lo->block) / (double) (hi->block - lo->block) : 0.0;
-  if (hi == lo)
+  bs->surface = g_new (double, bs->n);
+  bs->base = g_new (double, bs->n);
+  bs->coal_roof = g_new (double, bs->n);
+  for (guint i = 0; i < bs->n; i++)
     {
-      bs->surface = g_steal_pointer (&a.surface);
-      bs->base = g_steal_pointer (&a.base);
-      bs->coal_roof = g_steal_pointer (&a.roof);
-      bs->x_highwall_toe_m = a.x_toe;
-      bs->x_low_wall_edge_m = a.x_edge;
-      bs->bank_area_m2 = a.bank;
-      bs->cast_area_m2 = a.cast;
+      bs->surface[i] = (1 - w) * a->surface[i] + w * b->surface[i];
+      bs->base[i] = (1 - w) * a->base[i] + w * b->base[i];
+      bs->coal_roof[i] = (1 - w) * a->roof[i] + w * b->roof[i];
     }
-  else
-    {
-      bs->surface = g_new (double, bs->n);
-      bs->base = g_new (double, bs->n);
-      bs->coal_roof = g_new (double, bs->n);
-      for (guint i = 0; i < bs->n; i++)
-        {
-          bs->surface[i] = (1 - w) * a.surface[i] + w * b.surface[i];
-          bs->base[i] = (1 - w) * a.base[i] + w * b.base[i];
-          bs->coal_roof[i] = (1 - w) * a.roof[i] + w * b.roof[i];
-        }
-      bs->x_highwall_toe_m = (1 - w) * a.x_toe + w * b.x_toe;
-      bs->x_low_wall_edge_m = (1 - w) * a.x_edge + w * b.x_edge;
-      bs->bank_area_m2 = (1 - w) * a.bank + w * b.bank;
-      bs->cast_area_m2 = (1 - w) * a.cast + w * b.cast;
-    }
-  sampled_clear (&a);
-  sampled_clear (&b);
+  bs->x_highwall_toe_m = (1 - w) * a->x_toe + w * b->x_toe;
+  bs->x_low_wall_edge_m = (1 - w) * a->x_edge + w * b->x_edge;
+  bs->bank_area_m2 = (1 - w) * a->bank + w * b->bank;
+  bs->cast_area_m2 = (1 - w) * a->cast + w * b->cast;
+  bs->coal_thickness_m = a->coal_m > 0 && b->coal_m > 0 ? (1 - w) * a->coal_m + w * b->coal_m
+                                                        : MAX (a->coal_m, b->coal_m);
   /* Loose ground cannot stand steeper than its angle of repose: surveyed or
    * interpolated strings that do (by survey roughness, say) settle first. */
   sf_heights_relax (bs->surface, bs->base, bs->n, bs->dx_m, bs->tan_repose, 0, bs->n, 1e-9, NULL,

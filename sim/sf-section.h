@@ -37,6 +37,7 @@ typedef struct {
   /* bank and loose section areas of the original overburden block, m2
    * (generated sections only; 0 for strings). */
   double bank_area_m2, cast_area_m2;
+  double coal_thickness_m;   /* generated sections; 0 when not known (strings) */
 } SfBlockSection;
 
 /* Builds the section of `block` (0-based).  Interpolates linearly between the
@@ -46,6 +47,15 @@ typedef struct {
  * surface everywhere, cast too large for the void ...). */
 SfBlockSection *sf_block_section_new (const SfScenario *sc, guint block, GError **error);
 void sf_block_section_free (SfBlockSection *bs);
+
+/* The given sections of a scenario sampled once on the profile grid, so that
+ * building many blocks does not generate the same section again. */
+typedef struct _SfSectionSet SfSectionSet;
+SfSectionSet *sf_section_set_new (const SfScenario *sc, GError **error);
+void sf_section_set_free (SfSectionSet *set);
+G_DEFINE_AUTOPTR_CLEANUP_FUNC (SfSectionSet, sf_section_set_free)
+SfBlockSection *sf_block_section_new_from_set (const SfSectionSet *set, const SfScenario *sc,
+                                               guint block, GError **error);
 G_DEFINE_AUTOPTR_CLEANUP_FUNC (SfBlockSection, sf_block_section_free)
 
 /* The final spoil line of the standard design at x: through the low-wall toe

@@ -113,6 +113,10 @@ slice_new (const SliceFrame *fr, SfSliceKind kind, double grade, gboolean throug
 static void
 slice_bound (SfSlice *s, const SfBlockSection *bs)
 {
+  /* Nothing is cut below the non-erodible ground (the natural surface behind
+   * the highwall crest, the highwall face, the coal). */
+  for (guint j = 0; j < bs->n; j++)
+    s->target[j] = MAX (s->target[j], bs->base[j]);
   guint i = s->i_pivot + 1;
   while (i < bs->n && bs->surface[i] > s->target[i] + SF_CUT_TOL_M)
     i++;
@@ -195,7 +199,10 @@ sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_widt
     }
 
   /* The final target left of the pivot is the dozer floor. */
-  plan->dozable_lcm = sf_heights_area_between (bs->surface, bs->floor, 0, i_p + 1, x0, dx, NULL,
+  g_autofree double *floor_b = g_new (double, n);
+  for (guint i = 0; i < n; i++)
+    floor_b[i] = MAX (bs->floor[i], bs->base[i]);
+  plan->dozable_lcm = sf_heights_area_between (bs->surface, floor_b, 0, i_p + 1, x0, dx, NULL,
                                                NULL)
                       * lane_width_m;
   if (d->pivot == SF_PIVOT_LIFTED)
@@ -231,7 +238,8 @@ sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_widt
       /* Layers: from the highest ground left on the ramp down to the pivot. */
       double z_top = bs->z_pivot_m;
       for (guint i = 0; i <= i_p; i++)
-        z_top = MAX (z_top, MIN (z[i], ramp[i]));
+        if (z[i] > bs->base[i] + SF_CUT_TOL_M)
+          z_top = MAX (z_top, MIN (z[i], ramp[i]));
       for (guint k = 1; k <= d->layer_count; k++)
         {
           double level = bs->z_pivot_m + (z_top - bs->z_pivot_m) * (double) (d->layer_count - k)
@@ -263,7 +271,8 @@ sf_slice_plan_new (const SfBlockSection *bs, const SfDesign *d, double lane_widt
       const double x_b = x0 + (i_b + 0.5) * dx;
       double z_top = bs->floor[i_toe], z_bot = bs->z_pivot_m;
       for (guint i = i_toe; i <= i_p; i++)
-        z_top = MAX (z_top, bs->surface[i]);
+        if (bs->surface[i] > bs->base[i] + SF_CUT_TOL_M)
+          z_top = MAX (z_top, bs->surface[i]);
       for (guint i = i_p; i <= i_b; i++)
         z_bot = MIN (z_bot, bs->surface[i]);
       const guint m = d->straight_count;

@@ -138,6 +138,90 @@ GArray *sf_study_slice_plan (const SfScenario *sc, guint block, const SfStudyOpt
 GArray *sf_study_push_lane (const SfScenario *sc, guint block, guint lane, guint class_index,
                             const SfStudyOptions *opt, SfLaneTotals *totals, GError **error);
 
+/* ---- fleet runs: several dozers working the strip through time ------------ */
+
+/* Time-usage categories of a dozer; they add up to calendar time exactly. */
+typedef enum {
+  SF_USE_OPERATING = 0,  /* pushing (load, carry, dump, return) */
+  SF_USE_WAIT_LANE,      /* work exists but no lane is free under the work-area rules */
+  SF_USE_WAIT_BLAST,     /* every open block is done or taken; the next is not blasted yet */
+  SF_USE_TRAMMING,       /* moving between lanes or blocks */
+  SF_USE_BREAKDOWN,      /* under repair */
+  SF_USE_WAIT_FITTER,    /* broken down, every fitter busy */
+  SF_USE_SERVICE,        /* planned service */
+  SF_USE_REFUEL,         /* refuelling */
+  SF_USE_SHIFT_CHANGE,   /* operators changing over */
+  SF_USE_MEAL,           /* meal break */
+  SF_USE_UNMANNED,       /* no operator rostered for this machine */
+  SF_USE_WEATHER,        /* wet-weather stop */
+  SF_USE_IDLE_DONE,      /* no more work for this machine */
+  SF_USE_N
+} SfUse;
+
+/* Key of a category in outputs ("operating", "wait_lane", ...); static. */
+const char *sf_use_to_str (SfUse u);
+
+typedef struct {
+  const char *out_dir;      /* folder for the output files; NULL writes none */
+  gboolean overwrite;       /* replace outputs that another scenario left in out_dir */
+  gint64 seed;              /* < 0: the scenario's seed */
+  int n_dozers;             /* <= 0: the scenario's fleet; else this many, classes taken in
+                               fleet order and repeated */
+  gboolean progress;        /* a progress line on stderr when it is a terminal */
+  gboolean no_randomness;   /* no breakdowns and no weather (what-if runs, tests) */
+  gboolean constant_lanes;  /* test lanes: the ground is put back after every push, so every
+                               push repeats the first (constant push distance) */
+  int only_block;           /* >= 0: only this block is worked (tests) */
+  int only_lane;            /* >= 0: only this lane of each block is worked (tests) */
+} SfRunOptions;
+
+#define SF_RUN_OPTIONS_INIT { NULL, FALSE, -1, 0, FALSE, FALSE, FALSE, -1, -1 }
+
+typedef struct {
+  char *name;               /* "d01", ... */
+  char *class_name;
+  guint pushes;
+  guint failures;
+  double moved_bcm;         /* dumped at the dump front (gross) */
+  double engine_h;          /* operating + tramming: the hours failures and services count */
+  double bcm_per_operating_h;
+  double cost;              /* class cost per operating hour x (operating + tramming) hours */
+  gint64 use_ms[SF_USE_N];  /* time usage, milliseconds; the sum is the calendar time */
+} SfDozerResult;
+
+typedef struct {
+  gboolean complete;        /* every lane of every block worked out */
+  char *end_reason;         /* "complete" or why the run stopped */
+  char *start_iso, *end_iso;
+  gint64 calendar_ms;       /* run start to end */
+  double calendar_h;
+  double planned_bcm;       /* above the final design in the dozing zones at the start */
+  double moved_bcm;         /* carried out of the zones (net) */
+  double dropped_bcm;       /* left in the zones' footprint below the design */
+  double left_bcm;          /* still above the final design */
+  double dumped_bcm, rehandled_bcm, over_spoil_bcm;
+  double operating_h;       /* fleet */
+  double bcm_per_operating_h, bcm_per_calendar_h; /* moved / hours */
+  double strip_m_per_day;   /* strip length uncovered per calendar day */
+  double coal_t_per_day;    /* 0 when coal density or thickness is unknown */
+  double cost, cost_per_bcm;
+  guint pushes;
+  guint64 events;
+  GArray *dozers;           /* SfDozerResult, owned */
+} SfRunSummary;
+
+void sf_run_summary_clear (SfRunSummary *s);
+
+/* Runs the scenario once: every dozer of the fleet works the strip push by
+ * push through simulated time.  Writes summary.json, schedule.csv, daily.csv
+ * and events.log into opt->out_dir (each atomically: a killed run leaves the
+ * previous complete files or the new ones), and fills *sum.  Fails when the
+ * scenario cannot be laid out, the output folder cannot be written or holds
+ * another scenario's outputs (unless overwrite), or the run makes no
+ * progress (with the reason). */
+gboolean sf_run (const SfScenario *sc, const SfRunOptions *opt, SfRunSummary *sum,
+                 GError **error);
+
 /* ---- charts: the block studies as PNG pictures ------------------------------ */
 
 /* Draws the cross-section of `block` under `opt` (may be NULL) with its

@@ -29,12 +29,14 @@ static int verb_validate (int argc, char **argv);
 static int verb_plan (int argc, char **argv);
 static int verb_lane (int argc, char **argv);
 static int verb_compare (int argc, char **argv);
+static int verb_run (int argc, char **argv);
 
 static const Verb VERBS[] = {
   { "validate", "check a scenario and report every problem", verb_validate },
   { "plan", "print a block's slice plan (volumes, push distances, grades)", verb_plan },
   { "lane", "push one lane of a block to completion with one dozer", verb_lane },
   { "compare", "production gain of straight pushes and of a carry blade", verb_compare },
+  { "run", "simulate the whole fleet working the strip through time", verb_run },
 };
 
 /* Parses verb options; on failure prints the message and a hint. */
@@ -341,7 +343,7 @@ verb_compare (int argc, char **argv)
       "First side of the blade comparison (default: the first carry-blade class)", "NAME" },
     { "against", 'a', 0, G_OPTION_ARG_STRING, &opt_against,
       "Other side of the blade comparison (default: the first U-blade class)", "NAME" },
-    { NULL }
+    G_OPTION_ENTRY_NULL
   };
   g_option_context_set_summary (
     ctx, "Pushes one lane of a block out twice and reports the production gains:\n"
@@ -400,6 +402,98 @@ verb_compare (int argc, char **argv)
           100.0 * (ta.bcm_per_operating_h / tb.bcm_per_operating_h - 1.0));
   printf ("\n%s", CAUTION);
   return SF_EXIT_OK;
+}
+
+static void
+print_run_summary (const SfScenario *sc, const SfRunSummary *s, const char *out_dir)
+{
+  printf ("Fleet run of '%s' (%s)\n", sf_scenario_get_name (sc), sf_scenario_get_description (sc));
+  printf ("  start %s   end %s   %s\n", s->start_iso, s->end_iso, s->end_reason);
+  printf ("  calendar %.1f h (%.1f days); %u pushes; %" G_GUINT64_FORMAT " events\n\n",
+          s->calendar_h, s->calendar_h / 24.0, s->pushes, s->events);
+  printf ("  volumes (bcm): planned %.0f = moved %.0f + dropped in place %.0f + left %.0f\n",
+          s->planned_bcm, s->moved_bcm, s->dropped_bcm, s->left_bcm);
+  printf ("  fleet: %.1f bcm per operating hour, %.1f bcm per calendar hour\n",
+          s->bcm_per_operating_h, s->bcm_per_calendar_h);
+  printf ("  uncover rate: %.1f strip m/day", s->strip_m_per_day);
+  if (s->coal_t_per_day > 0)
+    printf (", %.0f t coal/day", s->coal_t_per_day);
+  printf ("\n  cost: %.0f in all, %.2f per bcm moved\n\n", s->cost, s->cost_per_bcm);
+  printf ("  %-5s %-18s %7s %9s %8s", "dozer", "class", "pushes", "bcm", "bcm/op_h");
+  for (int k = 0; k < SF_USE_N; k++)
+    printf (" %8.8s", sf_use_to_str (k));
+  printf ("\n");
+  for (guint i = 0; i < s->dozers->len; i++)
+    {
+      const SfDozerResult *d = &g_array_index (s->dozers, SfDozerResult, i);
+      printf ("  %-5s %-18s %7u %9.0f %8.1f", d->name, d->class_name, d->pushes, d->moved_bcm,
+              d->bcm_per_operating_h);
+      for (int k = 0; k < SF_USE_N; k++)
+        printf (" %8.1f", (double) d->use_ms[k] / 3.6e6);
+      printf ("\n");
+    }
+  printf ("  (time in hours by category; each row adds up to the calendar time)\n");
+  if (out_dir)
+    printf ("\n  outputs in %s: summary.json, schedule.csv, daily.csv, events.log\n", out_dir);
+  printf ("\n%s", CAUTION);
+}
+
+static int
+verb_run (int argc, char **argv)
+{
+  static char *out = NULL;
+  static gint64 seed = -1;
+  static int dozers = 0;
+  static gboolean overwrite = FALSE, no_random = FALSE, quiet = FALSE;
+  GOptionEntry entries[] = {
+    { "out", 'o', 0, G_OPTION_ARG_FILENAME, &out, "Folder for the output files", "DIR" },
+    { "seed", 0, 0, G_OPTION_ARG_INT64, &seed, "Random seed (default: the scenario's)", "N" },
+    { "dozers", 'n', 0, G_OPTION_ARG_INT, &dozers,
+      "Number of dozers (classes taken in fleet order; default: the scenario's fleet)", "N" },
+    { "overwrite", 0, 0, G_OPTION_ARG_NONE, &overwrite,
+      "Replace another scenario's outputs in DIR", NULL },
+    { "no-randomness", 0, 0, G_OPTION_ARG_NONE, &no_random, "No breakdowns and no weather", NULL },
+    { "quiet", 'q', 0, G_OPTION_ARG_NONE, &quiet, "No progress line", NULL },
+    G_OPTION_ENTRY_NULL
+  };
+  g_autoptr (GOptionContext) ctx
+    = g_option_context_new ("SCENARIO - simulate the fleet working the whole strip");
+  g_option_context_set_summary (ctx, "Every dozer of the fleet works the strip push by push through "
+                                     "simulated time, with shifts, breaks, breakdowns, weather and "
+                                     "blast dates.\nPrints a summary and writes summary.json, "
+                                     "schedule.csv, daily.csv and events.log into --out.");
+  g_option_context_add_main_entries (ctx, entries, NULL);
+  if (!parse_verb (ctx, "run", &argc, &argv, 1))
+    return SF_EXIT_USAGE;
+  if (dozers < 0)
+    {
+      g_printerr ("stripfleet run: --dozers: expected a positive number, found %d\n", dozers);
+      return SF_EXIT_USAGE;
+    }
+  int rc = SF_EXIT_OK;
+  g_autoptr (SfScenario) sc = load_or_report (argv[1], &rc);
+  if (!sc)
+    return rc;
+  SfRunOptions o = SF_RUN_OPTIONS_INIT;
+  o.out_dir = out;
+  o.overwrite = overwrite;
+  o.seed = seed;
+  o.n_dozers = dozers;
+  o.progress = !quiet;
+  o.no_randomness = no_random;
+  SfRunSummary sum;
+  g_autoptr (GError) err = NULL;
+  if (!sf_run (sc, &o, &sum, &err))
+    {
+      g_printerr ("stripfleet run: %s\n", err->message);
+      return err->domain == SF_MODEL_ERROR && err->code == SF_MODEL_ERROR_GEOMETRY
+               ? SF_EXIT_INVALID
+               : SF_EXIT_RUNTIME;
+    }
+  print_run_summary (sc, &sum, out);
+  gboolean complete = sum.complete;
+  sf_run_summary_clear (&sum);
+  return complete ? SF_EXIT_OK : SF_EXIT_RUNTIME;
 }
 
 static void

@@ -1,0 +1,66 @@
+/* SPDX-License-Identifier: MIT
+ *
+ * sf-report.h — the output files of a fleet run (internal to sim/).
+ *
+ * Owns: the output folder of one run and its four files (docs/output-formats.md):
+ *   events.log    one line per event, streamed to a temporary file while the run goes;
+ *   schedule.csv  one row per block, lane and slice;
+ *   daily.csv     one row per local calendar day;
+ *   summary.json  volumes, rates, time usage and costs.
+ * Every file is written under a temporary name beside its final name and
+ * renamed into place only when complete (the event log too), so a run
+ * killed at any moment leaves either the previous complete set or the new
+ * one.  A folder whose summary.json names another scenario is refused unless
+ * overwriting is asked for.
+ *
+ * Memory: sf_report_new returns an owned SfReport; sf_report_finish and
+ * sf_report_abort free it.  Rows are copied.
+ */
+#pragma once
+
+#include <glib.h>
+#include "sf-kernel.h"
+#include "stripfleet.h"
+
+G_BEGIN_DECLS
+
+typedef struct _SfReport SfReport;
+
+typedef struct {
+  guint block, lane, slice;
+  const char *kind;          /* static */
+  const char *end_reason;    /* static */
+  SfTime start_ms, finish_ms;
+  guint dozer;               /* the dozer that made the last push */
+  guint pushes;
+  double moved_bcm;
+} SfScheduleRow;
+
+typedef struct {
+  gint64 day;                /* local day index from the start date */
+  guint pushes;
+  double dumped_bcm;
+  double operating_h;
+  double weather_h;
+} SfDailyRow;
+
+/* out_dir NULL: a report that writes nothing (rows are still kept). */
+SfReport *sf_report_new (const char *out_dir, const char *scenario_name, gboolean overwrite,
+                         GDateTime *start, guint64 seed, GError **error);
+
+/* One event-log line: time, kind, dozer, then up to three numbers. */
+void sf_report_event (SfReport *rep, SfTime t_ms, const char *kind, int dozer, int block, int lane,
+                      int slice, double a, double b, double c);
+void sf_report_schedule (SfReport *rep, const SfScheduleRow *row);
+void sf_report_daily (SfReport *rep, const SfDailyRow *row);
+
+/* Writes schedule.csv, daily.csv and summary.json and commits events.log.
+ * Frees rep in every case. */
+gboolean sf_report_finish (SfReport *rep, const SfScenario *sc, const SfRunSummary *sum,
+                           GError **error);
+void sf_report_abort (SfReport *rep);
+
+/* ISO 8601 local time of run time t (newly allocated). */
+char *sf_report_iso (GDateTime *start, SfTime t_ms);
+
+G_END_DECLS
