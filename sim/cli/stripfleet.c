@@ -67,9 +67,8 @@ load_or_report (const char *path, int *rc)
   if (!sc)
     {
       g_printerr ("%s\n", err->message);
-      *rc = err->code == SF_SCENARIO_ERROR_IO ? SF_EXIT_RUNTIME : SF_EXIT_INVALID;
-      if (err->domain == SF_SCENARIO_ERROR && err->code == SF_SCENARIO_ERROR_IO)
-        *rc = SF_EXIT_INVALID;
+      /* unreadable, missing or invalid: all are bad input (docs/cli.md) */
+      *rc = SF_EXIT_INVALID;
     }
   return sc;
 }
@@ -260,8 +259,11 @@ print_lane (const GArray *res, const SfLaneTotals *t)
               r->operating_h, r->bcm_per_operating_h, r->mean_load_lcm, r->mean_push_m,
               r->mean_cycle_min, r->end_reason);
     }
+  double rehandled_lcm = 0;
+  for (guint k = 0; k < res->len; k++)
+    rehandled_lcm += g_array_index (res, SfSliceResult, k).rehandled_lcm;
   printf ("%5s %-9s %7u %9.1f %9s %9s %9.1f %9.2f %9.1f\n", "all", "", t->pushes, t->moved_bcm,
-          "", "", t->rehandled_bcm, t->operating_h, t->bcm_per_operating_h);
+          "", "", rehandled_lcm, t->operating_h, t->bcm_per_operating_h);
   printf ("\nplanned %.1f bcm = moved out of the zone %.1f + dropped in the zone %.1f + left "
           "above the final design %.1f\n",
           t->planned_bcm, t->moved_out_bcm, t->dropped_in_zone_bcm, t->left_bcm);
@@ -302,6 +304,8 @@ verb_lane (int argc, char **argv)
   if (!sc)
     return rc;
   int k = resolve_class (sc, opt_class, 0);
+  if (opt_lane < 0)
+    g_printerr ("stripfleet lane: --lane: expected a lane number from 0, found %d\n", opt_lane);
   if (k < 0 || opt_lane < 0)
     return SF_EXIT_USAGE;
   g_autoptr (GError) err = NULL;
@@ -346,9 +350,9 @@ verb_compare (int argc, char **argv)
     G_OPTION_ENTRY_NULL
   };
   g_option_context_set_summary (
-    ctx, "Pushes one lane of a block out twice and reports the production gains:\n"
-         "  straight pushes over tip-over-and-layer slices (same machine), and\n"
-         "  --class over --against (same slices), e.g. a carry blade over a U blade.");
+    ctx, "Pushes lane 0 of a block out four times and reports the production gains:\n"
+         "  straight pushes over tip-over-and-layer slices (same machine, --class), and\n"
+         "  --carry over --against (same slices), e.g. a carry blade over a U blade.");
   g_option_context_add_main_entries (ctx, entries, NULL);
   if (!parse_verb (ctx, "compare", &argc, &argv, 1))
     return SF_EXIT_USAGE;
@@ -360,6 +364,9 @@ verb_compare (int argc, char **argv)
   int def_a = class_with_blade (sc, "carry"), def_b = class_with_blade (sc, "u");
   int ka = resolve_class (sc, opt_carry, def_a >= 0 ? def_a : 0);
   int kb = resolve_class (sc, opt_against, def_b >= 0 ? def_b : 0);
+  if (opt_block < 0)
+    g_printerr ("stripfleet compare: --block: expected a block number from 0, found %d\n",
+                opt_block);
   if (ks < 0 || ka < 0 || kb < 0 || opt_block < 0)
     return SF_EXIT_USAGE;
   g_autoptr (GError) err = NULL;
