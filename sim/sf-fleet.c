@@ -55,6 +55,7 @@ enum {
   EV_WEATHER_START,
   EV_WEATHER_END,
   EV_BLAST,
+  EV_HORIZON,
   EV_N
 };
 
@@ -460,7 +461,9 @@ dozer_work (World *w, Dozer *d)
             {
               memcpy (ls->lane->z, ls->z_keep, ls->lane->n * sizeof (double));
               memcpy (ls->lane->dumped, ls->dumped_keep, ls->lane->n * sizeof (double));
-              ls->cur.slice = slice; /* the same slice, for ever (until the run stops) */
+              /* the same slice, for ever (until the run stops) */
+              sf_lane_cursor_init (&ls->cur, ls->cur.plan, ls->lane);
+              ls->cur.slice = slice;
             }
           if (ls->slice_start < 0)
             ls->slice_start = now_of (w);
@@ -951,6 +954,7 @@ run_loop (World *w)
       w->end_reason = "complete";
     }
   const SfTime horizon = hours_ms (w->sc->sim.horizon_days * 24.0);
+  sf_kernel_schedule (w->k, horizon, EV_HORIZON, 0, SF_PAYLOAD_NONE);
   SfEvent ev;
   while (!w->stop && sf_kernel_pop (w->k, horizon, &ev))
     {
@@ -995,7 +999,7 @@ run_loop (World *w)
           if (w->weather_count++ == 0)
             set_holds (w, HOLD_WEATHER, TRUE);
           sf_kernel_schedule_in (w->k, ev.payload.i, EV_WEATHER_END, 0, SF_PAYLOAD_NONE);
-          sf_report_event (w->rep, now_of (w), "weather", -1, -1, -1, -1,
+          sf_report_event (w->rep, now_of (w), "wet_stop", -1, -1, -1, -1,
                            (double) ev.payload.i / SF_TIME_MS_PER_H, 0, 0);
           break;
         case EV_WEATHER_END:
@@ -1005,6 +1009,10 @@ run_loop (World *w)
         case EV_BLAST:
           w->blasts_pending--;
           open_block (w, ev.entity);
+          break;
+        case EV_HORIZON:
+          w->stop = TRUE;
+          w->end_reason = "horizon reached with work left";
           break;
         }
       if ((w->events & 4095) == 0)
