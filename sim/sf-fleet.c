@@ -29,6 +29,7 @@
  */
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 #include <unistd.h>
 
@@ -873,8 +874,8 @@ world_new (const SfScenario *sc, const SfRunOptions *opt, GError **error)
       g_snprintf (d->name, sizeof d->name, "d%02u", i + 1);
       d->block = d->lane = d->at_block = d->at_lane = -1;
       d->cat = SF_USE_WAIT_BLAST;
-      d->rng_fail = sf_rng_new (w->seed, 0, i, RNG_FAILURE);
-      d->rng_repair = sf_rng_new (w->seed, 0, i, RNG_REPAIR);
+      d->rng_fail = sf_rng_new (w->seed, opt->replication, i, RNG_FAILURE);
+      d->rng_repair = sf_rng_new (w->seed, opt->replication, i, RNG_REPAIR);
       d->ttf = c->reliability.failures && w->failures_on
                  ? MAX (hours_ms (sf_dist_draw (&c->reliability.tbf_h, d->rng_fail)), 1)
                  : G_MAXINT64 / 4;
@@ -885,7 +886,7 @@ world_new (const SfScenario *sc, const SfRunOptions *opt, GError **error)
   g_array_unref (order);
   w->fitters = sf_resource_new (MAX (sc->sim.fitters, 1u));
   w->weather_on = !opt->no_randomness && sc->roster.wet_day_probability > 0;
-  w->rng_weather = sf_rng_new (w->seed, 0, 0, RNG_WEATHER);
+  w->rng_weather = sf_rng_new (w->seed, opt->replication, 0, RNG_WEATHER);
   w->end_reason = "stopped";
   return w;
 
@@ -1177,4 +1178,125 @@ sf_run (const SfScenario *sc, const SfRunOptions *opt, SfRunSummary *sum, GError
   if (!ok)
     sf_run_summary_clear (sum);
   return ok;
+}
+
+/* ---- replications ---------------------------------------------------------- */
+
+typedef struct {
+  const SfScenario *sc;
+  SfRunOptions opt;
+  SfRunSummary *sums;
+  GError **errors;
+  gboolean *ok;
+} RepJob;
+
+static void
+rep_worker (gpointer data, gpointer user_data)
+{
+  RepJob *job = user_data;
+  guint r = GPOINTER_TO_UINT (data) - 1;
+  SfRunOptions o = job->opt;
+  o.replication = r;
+  o.progress = FALSE;
+  if (r > 0)
+    o.out_dir = NULL;
+  job->ok[r] = sf_run (job->sc, &o, &job->sums[r], &job->errors[r]);
+}
+
+gboolean
+sf_run_replications (const SfScenario *sc, const SfRunOptions *opt, guint n, guint n_threads,
+                     SfRunSummary *sums, GError **error)
+{
+  g_return_val_if_fail (sc != NULL && sums != NULL && n > 0, FALSE);
+  RepJob job = { sc, SF_RUN_OPTIONS_INIT, sums, g_new0 (GError *, n), g_new0 (gboolean, n) };
+  if (opt)
+    job.opt = *opt;
+  if (n_threads <= 1)
+    for (guint r = 0; r < n; r++)
+      rep_worker (GUINT_TO_POINTER (r + 1), &job);
+  else
+    {
+      GThreadPool *pool = g_thread_pool_new (rep_worker, &job, (gint) MIN (n_threads, n), TRUE,
+                                             NULL);
+      for (guint r = 0; r < n; r++)
+        g_thread_pool_push (pool, GUINT_TO_POINTER (r + 1), NULL);
+      g_thread_pool_free (pool, FALSE, TRUE);
+    }
+  gboolean ok = TRUE;
+  for (guint r = 0; r < n; r++)
+    if (!job.ok[r] && ok)
+      {
+        ok = FALSE;
+        g_propagate_error (error, job.errors[r]);
+        job.errors[r] = NULL;
+      }
+  if (ok && n > 1 && job.opt.out_dir)
+    {
+      /* one row per replication, beside replication 0's files */
+      GString *csv = g_string_new ("replication,complete,calendar_h,moved_bcm,"
+                                   "bcm_per_operating_h,bcm_per_calendar_h,strip_m_per_day,"
+                                   "coal_t_per_day,cost_per_bcm,failures\n");
+      for (guint r = 0; r < n; r++)
+        {
+          guint failures = 0;
+          for (guint i = 0; i < sums[r].dozers->len; i++)
+            failures += g_array_index (sums[r].dozers, SfDozerResult, i).failures;
+          g_string_append_printf (csv, "%u,%d,%.4f,%.2f,%.3f,%.3f,%.3f,%.1f,%.4f,%u\n", r,
+                                  sums[r].complete, sums[r].calendar_h, sums[r].moved_bcm,
+                                  sums[r].bcm_per_operating_h, sums[r].bcm_per_calendar_h,
+                                  sums[r].strip_m_per_day, sums[r].coal_t_per_day,
+                                  sums[r].cost_per_bcm, failures);
+        }
+      g_autofree char *path = g_build_filename (job.opt.out_dir, "replications.csv", NULL);
+      ok = sf_write_file_atomic (path, csv->str, (gssize) csv->len, error);
+      g_string_free (csv, TRUE);
+    }
+  for (guint r = 0; r < n; r++)
+    {
+      g_clear_error (&job.errors[r]);
+      if (!ok)
+        sf_run_summary_clear (&sums[r]);
+    }
+  g_free (job.errors);
+  g_free (job.ok);
+  return ok;
+}
+
+static int
+cmp_double (gconstpointer a, gconstpointer b)
+{
+  double x = *(const double *) a, y = *(const double *) b;
+  return x < y ? -1 : x > y;
+}
+
+static double
+quantile7 (const double *sorted, guint n, double p)
+{
+  double h = (n - 1) * p;
+  guint lo = (guint) floor (h);
+  guint hi = MIN (lo + 1, n - 1);
+  return sorted[lo] + (h - lo) * (sorted[hi] - sorted[lo]);
+}
+
+void
+sf_spread (const double *x, guint n, SfSpread *out)
+{
+  memset (out, 0, sizeof *out);
+  if (n == 0)
+    return;
+  g_autofree double *s = g_memdup2 (x, n * sizeof (double));
+  qsort (s, n, sizeof (double), (int (*) (const void *, const void *)) cmp_double);
+  double sum = 0;
+  for (guint i = 0; i < n; i++)
+    sum += s[i];
+  out->mean = sum / n;
+  double ss = 0;
+  for (guint i = 0; i < n; i++)
+    ss += (s[i] - out->mean) * (s[i] - out->mean);
+  out->sd = n > 1 ? sqrt (ss / (n - 1)) : 0.0;
+  out->min = s[0];
+  out->max = s[n - 1];
+  out->p10 = quantile7 (s, n, 0.10);
+  out->p50 = quantile7 (s, n, 0.50);
+  out->p90 = quantile7 (s, n, 0.90);
 }

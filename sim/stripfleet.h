@@ -173,9 +173,10 @@ typedef struct {
                                push repeats the first (constant push distance) */
   int only_block;           /* >= 0: only this block is worked (tests) */
   int only_lane;            /* >= 0: only this lane of each block is worked (tests) */
+  guint replication;        /* index of the replication: selects the random streams */
 } SfRunOptions;
 
-#define SF_RUN_OPTIONS_INIT { NULL, FALSE, -1, 0, FALSE, FALSE, FALSE, -1, -1 }
+#define SF_RUN_OPTIONS_INIT { NULL, FALSE, -1, 0, FALSE, FALSE, FALSE, -1, -1, 0 }
 
 typedef struct {
   char *name;               /* "d01", ... */
@@ -221,6 +222,24 @@ void sf_run_summary_clear (SfRunSummary *s);
  * progress (with the reason). */
 gboolean sf_run (const SfScenario *sc, const SfRunOptions *opt, SfRunSummary *sum,
                  GError **error);
+
+/* Runs replications 0 .. n-1 of the scenario (opt->replication is ignored)
+ * on up to n_threads threads (GThreadPool) and fills sums[0 .. n-1] in
+ * replication order; only replication 0 writes output files (opt->out_dir).
+ * Each replication draws from its own random streams, so the results do not
+ * depend on the number of threads.  On failure returns FALSE with the first
+ * error (in replication order); sums are then all cleared. */
+gboolean sf_run_replications (const SfScenario *sc, const SfRunOptions *opt, guint n,
+                              guint n_threads, SfRunSummary *sums, GError **error);
+
+/* Spread of one measure over replications. */
+typedef struct {
+  double mean, sd, min, p10, p50, p90, max;
+} SfSpread;
+
+/* Mean, standard deviation (n-1), minimum, 10/50/90th percentiles (linear
+ * between order statistics, Hyndman & Fan type 7) and maximum of x[0..n-1]. */
+void sf_spread (const double *x, guint n, SfSpread *out);
 
 /* ---- charts: the block studies as PNG pictures ------------------------------ */
 

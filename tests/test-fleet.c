@@ -457,6 +457,52 @@ test_output_folder_rules (void **state)
   assert_non_null (strstr (err->message, "/proc/no-such-folder/out"));
 }
 
+/* Replications draw from their own streams: the results do not depend on the
+ * number of threads (GThreadPool), and replications differ from each other
+ * (analytic: independent streams). */
+static void
+test_replications_threads (void **state)
+{
+  (void) state;
+  g_autoptr (SfScenario) sc = demo ();
+  for (guint b = 0; b < sc->strip.n_blocks; b++)
+    sc->sim.blast_h[b] = 0;
+  for (guint k = 0; k < sc->classes->len; k++) /* frequent failures: the streams matter */
+    ((SfDozerClass *) g_ptr_array_index (sc->classes, k))->reliability.tbf_h
+      = (SfDist){ .kind = SF_DIST_EXPONENTIAL, .mean = 4.0 };
+  SfRunOptions o = SF_RUN_OPTIONS_INIT;
+  o.only_block = 3;
+  o.n_dozers = 3;
+  SfRunSummary a[4], b[4];
+  g_autoptr (GError) err = NULL;
+  assert_true (sf_run_replications (sc, &o, 4, 1, a, &err));
+  assert_true (sf_run_replications (sc, &o, 4, 3, b, &err));
+  for (guint r = 0; r < 4; r++)
+    {
+      assert_int_equal (a[r].calendar_ms, b[r].calendar_ms);
+      assert_int_equal (a[r].pushes, b[r].pushes);
+      sf_assert_close (a[r].moved_bcm, b[r].moved_bcm, 0, 0);
+    }
+  gboolean differ = FALSE;
+  for (guint r = 1; r < 4; r++)
+    differ = differ || a[r].calendar_ms != a[0].calendar_ms;
+  assert_true (differ);
+  /* the spread of four values, by hand: 1, 2, 3, 4 -> mean 2.5, sd 1.290994,
+   * p10 1.3, p50 2.5, p90 3.7 (Hyndman & Fan 1996, type 7) */
+  SfSpread sp;
+  sf_spread ((double[]){ 4, 1, 3, 2 }, 4, &sp);
+  sf_assert_close (sp.mean, 2.5, 0, 1e-12);
+  sf_assert_close (sp.sd, 1.2909944487, 0, 1e-9);
+  sf_assert_close (sp.p10, 1.3, 0, 1e-12);
+  sf_assert_close (sp.p50, 2.5, 0, 1e-12);
+  sf_assert_close (sp.p90, 3.7, 0, 1e-12);
+  for (guint r = 0; r < 4; r++)
+    {
+      sf_run_summary_clear (&a[r]);
+      sf_run_summary_clear (&b[r]);
+    }
+}
+
 int
 main (void)
 {
@@ -470,6 +516,7 @@ main (void)
     cmocka_unit_test (test_constant_lane_textbook),
     cmocka_unit_test (test_availability_renewal),
     cmocka_unit_test (test_fleet_size_returns),
+    cmocka_unit_test (test_replications_threads),
   };
   /* the group setup runs the full demo once; the tests that need it read it */
   return cmocka_run_group_tests_name ("fleet", tests, setup_demo, teardown_demo);

@@ -442,7 +442,32 @@ print_run_summary (const SfScenario *sc, const SfRunSummary *s, const char *out_
   printf ("  (time in hours by category; each row adds up to the calendar time)\n");
   if (out_dir)
     printf ("\n  outputs in %s: summary.json, schedule.csv, daily.csv, events.log\n", out_dir);
-  printf ("\n%s", CAUTION);
+}
+
+static void
+print_spread (const SfRunSummary *sums, guint n)
+{
+  printf ("\nSpread over %u replications (replication 0 above; its files in --out):\n", n);
+  printf ("  %-26s %10s %9s %10s %10s %10s %10s %10s\n", "measure", "mean", "sd", "min", "p10",
+          "p50", "p90", "max");
+  g_autofree double *x = g_new (double, n);
+  static const char *const names[] = { "completion (days)", "bcm per operating hour",
+                                       "bcm per calendar hour", "strip m per day",
+                                       "coal t per day", "cost per bcm" };
+  for (guint m = 0; m < G_N_ELEMENTS (names); m++)
+    {
+      for (guint r = 0; r < n; r++)
+        {
+          const SfRunSummary *s = &sums[r];
+          double v[] = { s->calendar_h / 24.0, s->bcm_per_operating_h, s->bcm_per_calendar_h,
+                         s->strip_m_per_day, s->coal_t_per_day, s->cost_per_bcm };
+          x[r] = v[m];
+        }
+      SfSpread sp;
+      sf_spread (x, n, &sp);
+      printf ("  %-26s %10.2f %9.2f %10.2f %10.2f %10.2f %10.2f %10.2f\n", names[m], sp.mean, sp.sd,
+              sp.min, sp.p10, sp.p50, sp.p90, sp.max);
+    }
 }
 
 static int
@@ -452,6 +477,7 @@ verb_run (int argc, char **argv)
   static gint64 seed = -1;
   static int dozers = 0;
   static gboolean overwrite = FALSE, no_random = FALSE, quiet = FALSE;
+  static int replications = 1, threads = 0;
   GOptionEntry entries[] = {
     { "out", 'o', 0, G_OPTION_ARG_FILENAME, &out, "Folder for the output files", "DIR" },
     { "seed", 0, 0, G_OPTION_ARG_INT64, &seed, "Random seed (default: the scenario's)", "N" },
@@ -461,6 +487,10 @@ verb_run (int argc, char **argv)
       "Replace another scenario's outputs in DIR", NULL },
     { "no-randomness", 0, 0, G_OPTION_ARG_NONE, &no_random, "No breakdowns and no weather", NULL },
     { "quiet", 'q', 0, G_OPTION_ARG_NONE, &quiet, "No progress line", NULL },
+    { "replications", 'r', 0, G_OPTION_ARG_INT, &replications,
+      "Run N replications (their own random streams) and report the spread (default 1)", "N" },
+    { "threads", 't', 0, G_OPTION_ARG_INT, &threads,
+      "Threads for the replications (default: the number of processors)", "T" },
     G_OPTION_ENTRY_NULL
   };
   g_autoptr (GOptionContext) ctx
@@ -488,18 +518,35 @@ verb_run (int argc, char **argv)
   o.n_dozers = dozers;
   o.progress = !quiet;
   o.no_randomness = no_random;
-  SfRunSummary sum;
+  if (replications < 1 || replications > 10000 || threads < 0)
+    {
+      g_printerr ("stripfleet run: --replications: expected 1 to 10000, --threads: 0 or more\n");
+      return SF_EXIT_USAGE;
+    }
+  g_autofree SfRunSummary *sums = g_new0 (SfRunSummary, replications);
   g_autoptr (GError) err = NULL;
-  if (!sf_run (sc, &o, &sum, &err))
+  gboolean ran = replications == 1
+                   ? sf_run (sc, &o, &sums[0], &err)
+                   : sf_run_replications (sc, &o, (guint) replications,
+                                          threads > 0 ? (guint) threads : g_get_num_processors (),
+                                          sums, &err);
+  if (!ran)
     {
       g_printerr ("stripfleet run: %s\n", err->message);
       return err->domain == SF_MODEL_ERROR && err->code == SF_MODEL_ERROR_GEOMETRY
                ? SF_EXIT_INVALID
                : SF_EXIT_RUNTIME;
     }
-  print_run_summary (sc, &sum, out);
-  gboolean complete = sum.complete;
-  sf_run_summary_clear (&sum);
+  print_run_summary (sc, &sums[0], out);
+  if (replications > 1)
+    print_spread (sums, (guint) replications);
+  printf ("\n%s", CAUTION);
+  gboolean complete = TRUE;
+  for (int r = 0; r < replications; r++)
+    {
+      complete = complete && sums[r].complete;
+      sf_run_summary_clear (&sums[r]);
+    }
   return complete ? SF_EXIT_OK : SF_EXIT_RUNTIME;
 }
 
