@@ -871,7 +871,7 @@ world_new (const SfScenario *sc, const SfRunOptions *opt, GError **error)
       d->cls = g_array_index (order, guint, i % order->len);
       const SfDozerClass *c = g_ptr_array_index (sc->classes, d->cls);
       sf_push_machine_init (&d->pm, c, &sc->material, &sc->design);
-      g_snprintf (d->name, sizeof d->name, "d%02u", i + 1);
+      g_snprintf (d->name, sizeof d->name, "dz%02u", i + 1);
       d->block = d->lane = d->at_block = d->at_lane = -1;
       d->cat = SF_USE_WAIT_BLAST;
       d->rng_fail = sf_rng_new (w->seed, opt->replication, i, RNG_FAILURE);

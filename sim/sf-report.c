@@ -148,7 +148,7 @@ schedule_csv (SfReport *rep)
       const SfScheduleRow *r = &g_array_index (rep->schedule, SfScheduleRow, i);
       g_autofree char *a = sf_report_iso (rep->start, r->start_ms);
       g_autofree char *b = sf_report_iso (rep->start, r->finish_ms);
-      g_string_append_printf (s, "%u,%u,%u,%s,%s,%s,%.4f,%.4f,d%02u,%u,%.2f,%s\n", r->block, r->lane,
+      g_string_append_printf (s, "%u,%u,%u,%s,%s,%s,%.4f,%.4f,dz%02u,%u,%.2f,%s\n", r->block, r->lane,
                               r->slice, r->kind, a, b, (double) r->start_ms / SF_TIME_MS_PER_H,
                               (double) r->finish_ms / SF_TIME_MS_PER_H, r->dozer + 1, r->pushes,
                               r->moved_bcm, r->end_reason ? r->end_reason : "");

@@ -179,7 +179,7 @@ typedef struct {
 #define SF_RUN_OPTIONS_INIT { NULL, FALSE, -1, 0, FALSE, FALSE, FALSE, -1, -1, 0 }
 
 typedef struct {
-  char *name;               /* "d01", ... */
+  char *name;               /* "dz01", ... */
   char *class_name;
   guint pushes;
   guint failures;

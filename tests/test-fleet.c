@@ -210,9 +210,9 @@ test_no_production_in_stops (void **state)
   assert_true (seen_shift_change > 0 && seen_meal > 0 && seen_weather > 0 && seen_unmanned > 0
                && seen_broken > 0);
   /* and the hours say so too: the unmanned machine never pushed */
-  const SfDozerResult *d6 = &g_array_index (r->sum.dozers, SfDozerResult, 5);
-  assert_int_equal (d6->pushes, 0);
-  assert_int_equal (d6->use_ms[SF_USE_OPERATING], 0);
+  const SfDozerResult *unmanned = &g_array_index (r->sum.dozers, SfDozerResult, 5);
+  assert_int_equal (unmanned->pushes, 0);
+  assert_int_equal (unmanned->use_ms[SF_USE_OPERATING], 0);
 }
 
 static gboolean
