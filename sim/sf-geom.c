@@ -1003,3 +1003,85 @@ sf_heights_collapse_face (double *z, const double *base, guint n, double dx_m, d
     z[last] += ls - gn;
   return TRUE;
 }
+
+/* ---- dump face under a sloping cap ------------------------------------------ */
+
+static double
+capped_added (const double *z, const double *cap, guint a, guint b, double x0_m, double dx_m,
+              double z_top_m, double tan_repose, double x_f)
+{
+  double s = 0;
+  for (guint j = a; j < b; j++)
+    {
+      double xc = x0_m + (j + 0.5) * dx_m;
+      double top = MIN (MIN (cap[j], z_top_m), z_top_m - (xc - x_f) * tan_repose);
+      if (top > z[j])
+        s += top - z[j];
+    }
+  return s * dx_m;
+}
+
+double
+sf_heights_deposit_capped (double *z, const double *cap, guint n, double x0_m, double dx_m,
+                           guint i_crest, double z_top_m, double tan_repose, double area_m2,
+                           guint *i_front)
+{
+  if (i_front)
+    *i_front = MIN (i_crest, n ? n - 1 : 0);
+  if (!(area_m2 > 0))
+    return 0.0;
+  if (!z || !cap || i_crest + 1 >= n || !(dx_m > 0) || !(tan_repose > 0))
+    return area_m2;
+  /* The run of cells the material can reach: up to the first cell standing
+   * at or above what could cover it. */
+  const guint a = i_crest + 1;
+  guint b = a;
+  while (b < n && z[b] < MIN (cap[b], z_top_m))
+    b++;
+  if (b == a)
+    return area_m2;
+  double room = 0;
+  for (guint j = a; j < b; j++)
+    room += MIN (cap[j], z_top_m) - z[j];
+  room *= dx_m;
+  if (area_m2 >= room)
+    {
+      for (guint j = a; j < b; j++)
+        z[j] = MIN (cap[j], z_top_m);
+      if (i_front)
+        *i_front = b - 1;
+      return area_m2 - room;
+    }
+  /* The face position x_f: the added area grows with it. */
+  double zmin = z[a];
+  for (guint j = a; j < b; j++)
+    zmin = MIN (zmin, z[j]);
+  double lo = x0_m + (a + 0.5) * dx_m - (z_top_m - zmin) / tan_repose - dx_m;
+  double hi = x0_m + (b + 0.5) * dx_m + dx_m;
+  for (int it = 0; it < 80; it++)
+    {
+      double mid = 0.5 * (lo + hi);
+      if (capped_added (z, cap, a, b, x0_m, dx_m, z_top_m, tan_repose, mid) < area_m2)
+        lo = mid;
+      else
+        hi = mid;
+    }
+  const double x_f = hi;
+  double added = 0;
+  guint last = a;
+  for (guint j = a; j < b; j++)
+    {
+      double xc = x0_m + (j + 0.5) * dx_m;
+      double top = MIN (MIN (cap[j], z_top_m), z_top_m - (xc - x_f) * tan_repose);
+      if (top > z[j])
+        {
+          added += (top - z[j]) * dx_m;
+          z[j] = top;
+          last = j;
+        }
+    }
+  z[last] += (area_m2 - added) / dx_m; /* rounding remainder */
+  if (i_front)
+    *i_front = last;
+  return 0.0;
+}

@@ -118,6 +118,15 @@ guint sf_heights_relax (double *z, const double *base, guint n, double dx_m, dou
 double sf_heights_deposit_face (double *z, guint n, double x0_m, double dx_m, guint i_crest,
                                 double z_top_m, double tan_repose, double area_m2, guint *i_front);
 
+/* Like sf_heights_deposit_face, but the pile's top follows a cap (n
+ * heights, e.g. a slice's sloping target line) instead of the flat level
+ * z_top: new z = max(old, min(cap, z_top, z_top - (x - x_f) tan)).  The
+ * material reaches cells from the crest up to the first one standing at or
+ * above min(cap, z_top).  Returns the area that did not fit. */
+double sf_heights_deposit_capped (double *z, const double *cap, guint n, double x0_m, double dx_m,
+                                  guint i_crest, double z_top_m, double tan_repose, double area_m2,
+                                  guint *i_front);
+
 /* Collapses a face of loose material steeper than the angle of repose in
  * one step: the face whose low side starts at cell `toe` and whose high side
  * lies at smaller indices (dir = +1) or larger ones (dir = -1) becomes a line

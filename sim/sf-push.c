@@ -334,8 +334,13 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const SfPushSpec *spec, Sf
       guint from = i_c + 1 < n ? i_c + 1 : i_c;
       memcpy (lane->scratch + from, z + from, (n - from) * sizeof (double));
       guint i_front = i_c;
-      double unfit = sf_heights_deposit_face (z, n, lane->x0_m, dx, i_c, z[i_c], lane->tan_repose,
-                                              V / w, &i_front);
+      /* Fill placed under a sloping design line follows it (straight pushes);
+       * otherwise the pad is level with the crest. */
+      double unfit = spec->fill_under_target
+                       ? sf_heights_deposit_capped (z, target, n, lane->x0_m, dx, i_c, z[i_c],
+                                                    lane->tan_repose, V / w, &i_front)
+                       : sf_heights_deposit_face (z, n, lane->x0_m, dx, i_c, z[i_c],
+                                                  lane->tan_repose, V / w, &i_front);
       for (guint j = from; j <= i_front && j < n; j++)
         {
           lane->dumped[j] += z[j] - lane->scratch[j];

@@ -147,6 +147,8 @@ typedef struct {
   gboolean dump_at_design;/* dump where the ground ahead falls below the target
                              (a pad built up to the target level, e.g. the pivot
                              level); otherwise at a crest steeper than drivable */
+  gboolean fill_under_target; /* the fill's top follows the target beyond the crest (a
+                                 sloping straight-push line); otherwise it is level */
 } SfPushSpec;
 
 /* Makes one push on `lane`.  The push starts far enough back from the front

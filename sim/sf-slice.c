@@ -370,7 +370,8 @@ sf_lane_cursor_step (SfLaneCursor *c, const SfPushMachine *pm, SfPushResult *pr)
       guint limit = sf_slice_limit (s, lane->z, lane->n, lane->dx_m);
       guint end = sf_slice_cut_end (s, lane->z, limit, SF_CUT_TOL_M);
       SfPushSpec spec = { s->target, end, SF_CUT_TOL_M, SF_SLICE_DONE_SHARE * pm->blade_lcm,
-                          s->through_pivot || s->kind == SF_SLICE_STRAIGHT };
+                          s->through_pivot || s->kind == SF_SLICE_STRAIGHT,
+                          s->kind == SF_SLICE_STRAIGHT && !s->through_pivot };
       switch (sf_push_cycle (pm, lane, &spec, pr))
         {
         case SF_PUSH_DONE:

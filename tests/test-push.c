@@ -244,7 +244,7 @@ test_push_conservation_and_repose (void **state)
   guint pushes = 0;
   SfPushResult r;
   SfPushStatus st;
-  SfPushSpec spec = { target, i_cut_end, 0.02, 0.25 * pm.blade_lcm, FALSE };
+  SfPushSpec spec = { target, i_cut_end, 0.02, 0.25 * pm.blade_lcm, FALSE, FALSE };
   while ((st = sf_push_cycle (&pm, l, &spec, &r)) == SF_PUSH_DONE)
     {
       pushes++;
@@ -278,7 +278,7 @@ test_push_distance_grows (void **state)
   double *base, *target;
   g_autoptr (SfLane) l = test_lane (&base, &target);
   SfPushResult first, r;
-  SfPushSpec spec = { target, 120, 0.02, 10.0, FALSE };
+  SfPushSpec spec = { target, 120, 0.02, 10.0, FALSE, FALSE };
   assert_int_equal (sf_push_cycle (&pm, l, &spec, &first), SF_PUSH_DONE);
   assert_true (first.deposited_lcm <= 37.5784);
   double last_push = 0;
@@ -308,7 +308,7 @@ test_push_stalls_uphill (void **state)
     }
   g_autoptr (SfLane) l = sf_lane_new (z, base, TN, 0, TDX, 6.0, 10.0);
   SfPushResult r;
-  SfPushSpec spec = { target, 40, 0.02, 1.0, FALSE };
+  SfPushSpec spec = { target, 40, 0.02, 1.0, FALSE, FALSE };
   assert_int_equal (sf_push_cycle (&pm, l, &spec, &r), SF_PUSH_STALLED);
   sf_assert_close (r.removed_lcm, 0.0, 1e-12, 0);
 }
@@ -323,7 +323,7 @@ test_push_nothing_left (void **state)
   double base[TN] = { 0 }, target[TN] = { 0 };
   g_autoptr (SfLane) l = sf_lane_new (base, base, TN, 0, TDX, 6.0, 0.75);
   SfPushResult r;
-  SfPushSpec spec = { target, TN, 0.02, 1.0, FALSE };
+  SfPushSpec spec = { target, TN, 0.02, 1.0, FALSE, FALSE };
   assert_int_equal (sf_push_cycle (&pm, l, &spec, &r), SF_PUSH_NOTHING_LEFT);
 }
 

@@ -130,13 +130,12 @@ net_rate (const SfLaneTotals *t)
 
 /* Straight pushes against tip-over + layers through the pivot, same block,
  * same machine.  Rule of thumb: straight pushes gain about 10-15 % net of
- * rehandle (common practice, no source).  The test checks the gross gain
- * (bcm dumped per operating hour) is positive and that straight lines cost
- * more dozer rehandle; docs/validation.md reports where the model lands, gross
- * and net, block by block, and why: straight lines keep every push downhill,
- * while pushes through the pivot carry over the flat, traction-limited and
- * longer; the fill that one straight line leaves above the next is pushed
- * again. */
+ * rehandle (common practice, no source).  The test checks the gain is
+ * positive, net (bcm taken out of the dozing zone per operating hour) and
+ * gross (bcm dumped per operating hour), on every fifth block; on the demo the
+ * model gives +7 to +17 % net (docs/validation.md has every block and the
+ * reasons: straight lines keep every push downhill, while pushes through the
+ * pivot carry over the flat, traction-limited and longer). */
 static void
 test_straight_push_gain (void **state)
 {
@@ -153,8 +152,8 @@ test_straight_push_gain (void **state)
       g_autoptr (GArray) rs = sf_study_push_lane (sc, b, 0, 0, &straight, &ts, &err);
       assert_non_null (rl);
       assert_non_null (rs);
+      assert_true (net_rate (&ts) > net_rate (&tl));
       assert_true (ts.bcm_per_operating_h > tl.bcm_per_operating_h);
-      assert_true (ts.rehandled_bcm > tl.rehandled_bcm); /* the price of straight lines */
     }
 }
 
