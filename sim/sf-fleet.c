@@ -285,6 +285,23 @@ lane_slice (const LaneState *ls)
   return ls->done ? G_MAXUINT / 2 : ls->cur.slice;
 }
 
+/* Is the dozer on lane l of block b already pushing blade to blade with a
+ * neighbour? */
+static gboolean
+has_partner (World *w, guint b, guint l)
+{
+  const BlockState *bk = &w->blocks[b];
+  int me = bk->lanes[l].dozer;
+  for (int dl = -1; dl <= 1; dl += 2)
+    {
+      int nl = (int) l + dl;
+      if (nl >= 0 && nl < (int) w->n_lanes && bk->lanes[nl].dozer >= 0 && bk->lanes[nl].dozer != me
+          && w->dz[bk->lanes[nl].dozer].cls == w->dz[me].cls)
+        return TRUE;
+    }
+  return FALSE;
+}
+
 /* May a dozer take lane l of block b now? */
 static gboolean
 lane_available (World *w, guint b, guint l, const Dozer *d)
@@ -305,12 +322,25 @@ lane_available (World *w, guint b, guint l, const Dozer *d)
       if (s > lane_slice (&bk->lanes[nl]) + sim->max_slice_lead)
         return FALSE;
     }
-  /* Separation from other dozers in the block. */
+  /* Separation from other dozers in the block.  With side-by-side dozing
+   * two machines of one class may push blade to blade in neighbouring lanes:
+   * one neighbour that has no partner yet is allowed. */
   int sep = (int) sim->min_separation_lanes;
+  int partner = -1;
   for (int ol = (int) l - sep; ol <= (int) l + sep; ol++)
-    if (ol >= 0 && ol < (int) w->n_lanes && bk->lanes[ol].dozer >= 0
-        && bk->lanes[ol].dozer != (int) d->id)
+    {
+      if (ol < 0 || ol >= (int) w->n_lanes || bk->lanes[ol].dozer < 0
+          || bk->lanes[ol].dozer == (int) d->id)
+        continue;
+      const Dozer *o = &w->dz[bk->lanes[ol].dozer];
+      if (w->sc->design.side_by_side && abs (ol - (int) l) == 1 && partner < 0
+          && o->cls == d->cls && !has_partner (w, b, (guint) ol))
+        {
+          partner = ol;
+          continue;
+        }
       return FALSE;
+    }
   return TRUE;
 }
 
