@@ -1,8 +1,9 @@
 /* SPDX-License-Identifier: MIT
  *
- * sf-chart-none.c — the chart entry points of stripfleet.h when the library
- * is built without cairo (meson option charts=disabled, or cairo not found):
- * they draw nothing and fail with G_FILE_ERROR_NOSYS.  Owns nothing.
+ * sf-chart-none.c — the chart entry points of stripfleet.h (block studies
+ * and fleet runs) when the library is built without cairo (meson option
+ * charts=disabled, or cairo not found): they draw nothing and fail with
+ * G_FILE_ERROR_NOSYS.  Owns nothing.
  */
 #include "stripfleet.h"
 
@@ -36,4 +37,14 @@ sf_study_chart_lane (const SfScenario *sc, guint block, guint lane, guint class_
   (void) class_index;
   (void) opt;
   return no_charts (png_path, error);
+}
+
+gboolean
+sf_chart_run_outputs (const char *out_dir, GError **error)
+{
+  g_set_error (error, G_FILE_ERROR, G_FILE_ERROR_NOSYS,
+               "cannot draw the charts of the run in %s: stripfleet was built without cairo "
+               "(meson option 'charts')",
+               out_dir ? out_dir : "(none)");
+  return FALSE;
 }

@@ -1,13 +1,16 @@
 /* SPDX-License-Identifier: MIT
  *
- * sf-chart.h — PNG charts of the block studies (internal to sim/).
+ * sf-chart.h — PNG charts of the block studies and of fleet runs (internal
+ * to sim/).
  *
  * Owns: drawing a block's cross-section with its slice plan, and one lane
  * before and after it is worked out with its production per slice, as PNG
  * images drawn with cairo (the public entry points are
  * sf_study_chart_plan() and sf_study_chart_lane() in stripfleet.h).  The
  * charts reuse the study wiring of sf-study.h, so a chart shows exactly what
- * the matching table prints.
+ * the matching table prints.  The charts of a fleet run (sf-chart-run.c,
+ * sf_chart_run_outputs() in stripfleet.h) are drawn from the run's output
+ * files alone.  The drawing kit both share is sf-chart-kit.h.
  *
  * sf-chart.c is built only when cairo is found (SF_HAVE_CAIRO); otherwise
  * sf-chart-none.c provides the public entry points, which fail with
@@ -27,6 +30,11 @@ G_BEGIN_DECLS
 #define SF_CHART_PLAN_HEIGHT_PX 720
 #define SF_CHART_LANE_WIDTH_PX 1280
 #define SF_CHART_LANE_HEIGHT_PX 960
+/* The fleet-run charts of sf_chart_run_outputs() (sf-chart-run.c). */
+#define SF_CHART_RUN_WIDTH_PX 1280
+#define SF_CHART_DAILY_HEIGHT_PX 720
+#define SF_CHART_USAGE_HEIGHT_PX 720
+#define SF_CHART_SCHEDULE_HEIGHT_PX 900
 
 /* Axis tick spacing for a data range: the smallest step of the form 1, 2 or
  * 5 times a power of ten that gives at most `max_ticks` intervals over

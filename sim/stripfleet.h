@@ -241,7 +241,7 @@ typedef struct {
  * between order statistics, Hyndman & Fan type 7) and maximum of x[0..n-1]. */
 void sf_spread (const double *x, guint n, SfSpread *out);
 
-/* ---- charts: the block studies as PNG pictures ------------------------------ */
+/* ---- charts: the block studies and fleet runs as PNG pictures -------------- */
 
 /* Draws the cross-section of `block` under `opt` (may be NULL) with its
  * slice plan — post-blast surface, natural surface level, base, coal roof,
@@ -263,5 +263,22 @@ gboolean sf_study_chart_plan (const SfScenario *sc, guint block, const SfStudyOp
  * sf_study_chart_plan(). */
 gboolean sf_study_chart_lane (const SfScenario *sc, guint block, guint lane, guint class_index,
                               const SfStudyOptions *opt, const char *png_path, GError **error);
+
+/* Draws the charts of a fleet run from the files that sf_run() wrote into
+ * `out_dir` (summary.json, daily.csv, schedule.csv), and writes them there,
+ * each atomically: daily.png (bcm dumped per day, bars, and the cumulative
+ * total, line on a right axis), usage.png (one bar per dozer of its calendar
+ * time by usage category, with its bcm per operating hour) and schedule.png
+ * (every lane slice as a bar from its first push to its end, one row per
+ * block, coloured by the dozer that made its last push).  The inputs are
+ * read strictly as sf_run() writes them, and all of them before anything is
+ * drawn: a missing file fails with its G_FILE_ERROR (naming the file), a
+ * file that is not as written with SF_SCENARIO_ERROR_SYNTAX or _INVALID
+ * naming the file and the line (or the JSON path), and then no chart is
+ * written.  Fails with a G_FILE_ERROR naming the chart when one cannot be
+ * written (the charts before it stay), G_FILE_ERROR_NOSYS when the library
+ * was built without cairo.  The charts carry the scenario's name and the
+ * planning-estimate caution; the same files give byte-identical charts. */
+gboolean sf_chart_run_outputs (const char *out_dir, GError **error);
 
 G_END_DECLS

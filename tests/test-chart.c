@@ -5,7 +5,11 @@
  * size (read back with cairo, a general-purpose reference library), the same
  * input gives the same bytes, a path that cannot be written fails naming it
  * and leaves nothing behind, and the axis tick steps are Heckbert's nice
- * numbers.  Without cairo, the entry points fail with "built without cairo".
+ * numbers.  The charts of a fleet run (a short run of the demo: block 3,
+ * three dozers) are valid PNGs of their sizes, byte-identical when drawn
+ * again, and missing or damaged run files fail naming the file (and line)
+ * without writing a chart.  Without cairo, the entry points fail with
+ * "built without cairo".
  *
  * Every file is written in a fresh temporary folder that the test removes.
  */
@@ -21,6 +25,7 @@
 
 #ifdef SF_HAVE_CAIRO
 #include <cairo.h>
+#include <cjson/cJSON.h>
 #endif
 
 #define DEMO_BLOCK 10
@@ -36,6 +41,13 @@ demo (void)
   return sc;
 }
 
+static int
+compare_names (gconstpointer a, gconstpointer b)
+{
+  /* g_ptr_array_sort passes pointers to the elements */
+  return strcmp (*(const char *const *) a, *(const char *const *) b);
+}
+
 /* Names of the entries of a folder, sorted (the order g_dir gives is not
  * defined). */
 static GPtrArray *
@@ -47,7 +59,7 @@ dir_entries (const char *dir)
   const char *name;
   while ((name = g_dir_read_name (d)))
     g_ptr_array_add (names, g_strdup (name));
-  g_ptr_array_sort (names, (GCompareFunc) g_strcmp0);
+  g_ptr_array_sort (names, compare_names);
   return names;
 }
 
@@ -70,9 +82,11 @@ remove_dir (const char *dir)
 static const guchar PNG_SIGNATURE[8] = { 0x89, 'P', 'N', 'G', '\r', '\n', 0x1a, '\n' };
 
 /* The file is a PNG that cairo (reference library) reads back without error
- * at the promised size, and it is not blank. */
+ * at the promised size, and it is not blank: at least min_ink of its pixels
+ * are not white, and at least min_colour are coloured (data are drawn in
+ * colour, frames, grids and text in greys: a chart with no data has none). */
 static void
-check_png (const char *path, int width, int height)
+check_png_ink (const char *path, int width, int height, double min_ink, double min_colour)
 {
   g_autofree char *data = NULL;
   gsize len = 0;
@@ -88,7 +102,7 @@ check_png (const char *path, int width, int height)
   cairo_surface_flush (img);
   const unsigned char *px = cairo_image_surface_get_data (img);
   const int stride = cairo_image_surface_get_stride (img);
-  long inked = 0;
+  long inked = 0, coloured = 0;
   for (int y = 0; y < height; y++)
     for (int x = 0; x < width; x++)
       {
@@ -96,9 +110,21 @@ check_png (const char *path, int width, int height)
         memcpy (&v, px + (gsize) y * stride + (gsize) x * 4, 4);
         if ((v & 0xffffff) != 0xffffff)
           inked++;
+        /* CAIRO_FORMAT_RGB24: 0x00RRGGBB in a native 32-bit word */
+        int r = (v >> 16) & 0xff, g = (v >> 8) & 0xff, b = v & 0xff;
+        if (MAX (r, MAX (g, b)) - MIN (r, MIN (g, b)) > 40)
+          coloured++;
       }
-  assert_true (inked > (long) width * height / 10);
+  assert_true (inked > min_ink * width * height);
+  assert_true (coloured >= min_colour * width * height);
   cairo_surface_destroy (img);
+}
+
+/* The study charts: a good share of the page is ink. */
+static void
+check_png (const char *path, int width, int height)
+{
+  check_png_ink (path, width, height, 0.10, 0.0);
 }
 
 /* Plan chart of block 10: a valid PNG of SF_CHART_PLAN_* pixels, and the
@@ -276,6 +302,225 @@ test_tick_step (void **state)
       }
 }
 
+/* ---- charts of a fleet run ------------------------------------------------------ */
+
+static const char *const RUN_PNGS[] = { "daily.png", "usage.png", "schedule.png" };
+
+/* A short fleet run of the demo into a new temporary folder (block 3 only,
+ * three dozers: enough for every chart, quick under the sanitizers). */
+static char *
+short_run (void)
+{
+  g_autoptr (SfScenario) sc = demo ();
+  char *dir = g_dir_make_tmp ("sf-chart-run-XXXXXX", NULL);
+  assert_non_null (dir);
+  SfRunOptions o = SF_RUN_OPTIONS_INIT;
+  o.out_dir = dir;
+  o.only_block = 3;
+  o.n_dozers = 3;
+  SfRunSummary sum;
+  g_autoptr (GError) err = NULL;
+  if (!sf_run (sc, &o, &sum, &err))
+    fail_msg ("%s", err->message);
+  sf_run_summary_clear (&sum);
+  return dir;
+}
+
+static char *
+file_text (const char *dir, const char *name, gsize *len)
+{
+  g_autofree char *path = g_build_filename (dir, name, NULL);
+  char *data = NULL;
+  assert_true (g_file_get_contents (path, &data, len, NULL));
+  return data;
+}
+
+static void
+put_file (const char *dir, const char *name, const char *text)
+{
+  g_autofree char *path = g_build_filename (dir, name, NULL);
+  assert_true (g_file_set_contents (path, text, -1, NULL));
+}
+
+/* The three charts: valid PNGs of the promised sizes, not blank (check_png:
+ * ISO/IEC 15948 signature, read back by cairo), nothing but the run's files
+ * and the charts in the folder (no temporary left: DEVELOPERS.md, outputs
+ * are written to a temporary file and renamed); drawn again, also under a
+ * comma decimal locale when one is installed, byte for byte the same
+ * (project rule: deterministic outputs, DEVELOPERS.md). */
+static void
+test_run_charts (void **state)
+{
+  (void) state;
+  g_autofree char *dir = short_run ();
+  g_autoptr (GError) err = NULL;
+  if (!sf_chart_run_outputs (dir, &err))
+    fail_msg ("%s", err->message);
+  const int heights[] = { SF_CHART_DAILY_HEIGHT_PX, SF_CHART_USAGE_HEIGHT_PX,
+                          SF_CHART_SCHEDULE_HEIGHT_PX };
+  char *first[G_N_ELEMENTS (RUN_PNGS)];
+  gsize first_len[G_N_ELEMENTS (RUN_PNGS)];
+  for (gsize i = 0; i < G_N_ELEMENTS (RUN_PNGS); i++)
+    {
+      g_autofree char *path = g_build_filename (dir, RUN_PNGS[i], NULL);
+      /* a short run draws little; at least 3 % ink and 0.5 % colour
+       * (common practice, no source) */
+      check_png_ink (path, SF_CHART_RUN_WIDTH_PX, heights[i], 0.03, 0.005);
+      first[i] = file_text (dir, RUN_PNGS[i], &first_len[i]);
+    }
+  g_autoptr (GPtrArray) names = dir_entries (dir);
+  const char *expected[] = { "daily.csv", "daily.png", "events.log", "schedule.csv",
+                             "schedule.png", "summary.json", "usage.png" };
+  assert_int_equal (names->len, G_N_ELEMENTS (expected));
+  for (gsize i = 0; i < G_N_ELEMENTS (expected); i++)
+    assert_string_equal (g_ptr_array_index (names, i), expected[i]);
+
+  const char *commas[] = { "de_DE.UTF-8", "fr_FR.UTF-8", "de_DE.utf8", "fr_FR.utf8" };
+  g_autofree char *old = g_strdup (setlocale (LC_NUMERIC, NULL));
+  for (gsize i = 0; i < G_N_ELEMENTS (commas); i++)
+    if (setlocale (LC_NUMERIC, commas[i]))
+      break;
+  gboolean again = sf_chart_run_outputs (dir, &err);
+  setlocale (LC_NUMERIC, old);
+  if (!again)
+    fail_msg ("%s", err->message);
+  for (gsize i = 0; i < G_N_ELEMENTS (RUN_PNGS); i++)
+    {
+      gsize len = 0;
+      g_autofree char *second = file_text (dir, RUN_PNGS[i], &len);
+      assert_int_equal (len, first_len[i]);
+      assert_memory_equal (second, first[i], len);
+      g_free (first[i]);
+    }
+  remove_dir (dir);
+}
+
+/* No chart in the folder (stripfleet.h: inputs are checked before anything
+ * is drawn). */
+static void
+assert_no_png (const char *dir)
+{
+  g_autoptr (GPtrArray) names = dir_entries (dir);
+  for (guint i = 0; i < names->len; i++)
+    assert_false (g_str_has_suffix (g_ptr_array_index (names, i), ".png"));
+}
+
+/* sf_chart_run_outputs fails, its message holds every string of `want`
+ * (NULL-terminated), and no chart is written (stripfleet.h contract). */
+static void
+assert_run_charts_fail (const char *dir, const char *const *want)
+{
+  g_autoptr (GError) err = NULL;
+  assert_false (sf_chart_run_outputs (dir, &err));
+  assert_non_null (err);
+  for (; *want; want++)
+    if (!strstr (err->message, *want))
+      fail_msg ("expected '%s' in the message: %s", *want, err->message);
+  assert_no_png (dir);
+}
+
+/* A missing or damaged daily.csv: FALSE, the message names the file (and the
+ * line when there is one), no chart written.  Each damage is one that a
+ * reader of our own format must not take for data. */
+static void
+test_run_charts_bad_daily (void **state)
+{
+  (void) state;
+  g_autofree char *dir = short_run ();
+  gsize len = 0;
+  g_autofree char *daily = file_text (dir, "daily.csv", &len);
+  g_autofree char *daily_path = g_build_filename (dir, "daily.csv", NULL);
+
+  /* missing */
+  assert_int_equal (g_unlink (daily_path), 0);
+  const char *missing[] = { "daily.csv", NULL };
+  assert_run_charts_fail (dir, missing);
+
+  /* a number that is not one, on the first data line */
+  g_auto (GStrv) lines = g_strsplit (daily, "\n", -1);
+  assert_true (g_strv_length (lines) >= 3);
+  g_auto (GStrv) f = g_strsplit (lines[1], ",", -1);
+  g_autofree char *bad_row = g_strdup_printf ("%s,%s,12x.5,%s", f[0], f[1], f[3]);
+  g_autofree char *bad = g_strdup_printf ("%s\n%s\n", lines[0], bad_row);
+  put_file (dir, "daily.csv", bad);
+  const char *bad_number[] = { "daily.csv", "line 2", "dumped_bcm", NULL };
+  assert_run_charts_fail (dir, bad_number);
+
+  /* cut short: the last line does not end */
+  g_autofree char *cut = g_strndup (daily, len - 3);
+  put_file (dir, "daily.csv", cut);
+  const char *cut_short[] = { "daily.csv", "line", NULL };
+  assert_run_charts_fail (dir, cut_short);
+
+  /* a field missing */
+  g_autofree char *short_row = g_strdup_printf ("%s\n%s,%s,%s\n", lines[0], f[0], f[1], f[2]);
+  put_file (dir, "daily.csv", short_row);
+  const char *fields[] = { "daily.csv", "line 2", "fields", NULL };
+  assert_run_charts_fail (dir, fields);
+
+  /* another header */
+  put_file (dir, "daily.csv", "day,bcm\n1,2\n");
+  const char *header[] = { "daily.csv", "line 1", NULL };
+  assert_run_charts_fail (dir, header);
+
+  /* rows that do not add up to the summary's volume: another run's file */
+  g_autofree char *halved = g_strdup_printf ("%s\n%s,%s,0.00,%s\n", lines[0], f[0], f[1], f[3]);
+  put_file (dir, "daily.csv", halved);
+  const char *other_run[] = { "daily.csv", "summary.json", NULL };
+  assert_run_charts_fail (dir, other_run);
+  remove_dir (dir);
+}
+
+/* Damaged summary.json and schedule.csv: the same contract (file and line,
+ * or the JSON path, in the message; no chart). */
+static void
+test_run_charts_bad_other (void **state)
+{
+  (void) state;
+  g_autofree char *dir = short_run ();
+  gsize len = 0;
+  g_autofree char *summary = file_text (dir, "summary.json", &len);
+  g_autofree char *schedule = file_text (dir, "schedule.csv", &len);
+
+  /* JSON broken on its third line */
+  g_auto (GStrv) jl = g_strsplit (summary, "\n", 4);
+  g_autofree char *broken = g_strdup_printf ("%s\n%s\n%s,,\n%s", jl[0], jl[1], jl[2], jl[3]);
+  put_file (dir, "summary.json", broken);
+  const char *json_line[] = { "summary.json", "line 3", NULL };
+  assert_run_charts_fail (dir, json_line);
+
+  /* a dozer's time usage without one category */
+  cJSON *root = cJSON_Parse (summary);
+  cJSON *dz0 = cJSON_GetArrayItem (cJSON_GetObjectItem (root, "dozers"), 0);
+  cJSON_DeleteItemFromObject (cJSON_GetObjectItem (dz0, "time_h"), "meal");
+  char *js = cJSON_Print (root);
+  cJSON_Delete (root);
+  put_file (dir, "summary.json", js);
+  cJSON_free (js);
+  const char *json_path[] = { "summary.json", "dozers[0].time_h.meal", NULL };
+  assert_run_charts_fail (dir, json_path);
+  put_file (dir, "summary.json", summary);
+
+  /* a slice of a dozer that is not in the summary, on the second line */
+  g_auto (GStrv) sl = g_strsplit (schedule, "\n", 3);
+  g_auto (GStrv) f = g_strsplit (sl[1], ",", -1);
+  assert_int_equal (g_strv_length (f), 12);
+  g_free (f[8]);
+  f[8] = g_strdup ("zz99");
+  g_autofree char *row = g_strjoinv (",", f);
+  g_autofree char *sched = g_strdup_printf ("%s\n%s\n%s", sl[0], row, sl[2]);
+  put_file (dir, "schedule.csv", sched);
+  const char *unknown[] = { "schedule.csv", "line 2", "zz99", NULL };
+  assert_run_charts_fail (dir, unknown);
+
+  /* and everything put back draws again */
+  put_file (dir, "schedule.csv", schedule);
+  g_autoptr (GError) err = NULL;
+  if (!sf_chart_run_outputs (dir, &err))
+    fail_msg ("%s", err->message);
+  remove_dir (dir);
+}
+
 /* The leak checker of the sanitizer build (LeakSanitizer) reads its
  * default suppressions from this hook.  fontconfig keeps the configuration
  * it parses at first use for the life of the process and cannot give it
@@ -308,6 +553,10 @@ test_without_cairo (void **state)
   g_clear_error (&err);
   assert_false (sf_study_chart_lane (sc, DEMO_BLOCK, 0, 0, NULL, path, &err));
   assert_non_null (strstr (err->message, "built without cairo"));
+  g_clear_error (&err);
+  assert_false (sf_chart_run_outputs (dir, &err));
+  assert_true (err->domain == G_FILE_ERROR && err->code == G_FILE_ERROR_NOSYS);
+  assert_non_null (strstr (err->message, "built without cairo"));
   g_autoptr (GPtrArray) names = dir_entries (dir);
   assert_int_equal (names->len, 0);
   remove_dir (dir);
@@ -326,6 +575,9 @@ main (void)
     cmocka_unit_test (test_unwritable),
     cmocka_unit_test (test_bad_arguments),
     cmocka_unit_test (test_tick_step),
+    cmocka_unit_test (test_run_charts),
+    cmocka_unit_test (test_run_charts_bad_daily),
+    cmocka_unit_test (test_run_charts_bad_other),
 #else
     cmocka_unit_test (test_without_cairo),
 #endif

@@ -477,6 +477,7 @@ verb_run (int argc, char **argv)
   static gint64 seed = -1;
   static int dozers = 0;
   static gboolean overwrite = FALSE, no_random = FALSE, quiet = FALSE;
+  static gboolean no_charts = FALSE;
   static int replications = 1, threads = 0;
   GOptionEntry entries[] = {
     { "out", 'o', 0, G_OPTION_ARG_FILENAME, &out, "Folder for the output files", "DIR" },
@@ -487,6 +488,8 @@ verb_run (int argc, char **argv)
       "Replace another scenario's outputs in DIR", NULL },
     { "no-randomness", 0, 0, G_OPTION_ARG_NONE, &no_random, "No breakdowns and no weather", NULL },
     { "quiet", 'q', 0, G_OPTION_ARG_NONE, &quiet, "No progress line", NULL },
+    { "no-charts", 0, 0, G_OPTION_ARG_NONE, &no_charts,
+      "Do not draw daily.png, usage.png and schedule.png into DIR", NULL },
     { "replications", 'r', 0, G_OPTION_ARG_INT, &replications,
       "Run N replications (their own random streams) and report the spread (default 1)", "N" },
     { "threads", 't', 0, G_OPTION_ARG_INT, &threads,
@@ -498,7 +501,9 @@ verb_run (int argc, char **argv)
   g_option_context_set_summary (ctx, "Every dozer of the fleet works the strip push by push through "
                                      "simulated time, with shifts, breaks, breakdowns, weather and "
                                      "blast dates.\nPrints a summary and writes summary.json, "
-                                     "schedule.csv, daily.csv and events.log into --out.");
+                                     "schedule.csv, daily.csv and events.log into --out, and "
+                                     "charts of them\n(daily.png, usage.png, schedule.png) unless "
+                                     "--no-charts.");
   g_option_context_add_main_entries (ctx, entries, NULL);
   if (!parse_verb (ctx, "run", &argc, &argv, 1))
     return SF_EXIT_USAGE;
@@ -538,6 +543,24 @@ verb_run (int argc, char **argv)
                : SF_EXIT_RUNTIME;
     }
   print_run_summary (sc, &sums[0], out);
+  if (out && !no_charts)
+    {
+      /* drawn from the files just written; a failure is only a warning */
+      g_autoptr (GError) cerr = NULL;
+      if (sf_chart_run_outputs (out, &cerr))
+        printf ("  charts: daily.png, usage.png, schedule.png\n");
+      else
+        {
+          g_printerr ("stripfleet run: warning: charts not drawn: %s\n", cerr->message);
+          static const char *const pngs[] = { "daily.png", "usage.png", "schedule.png" };
+          for (gsize i = 0; i < G_N_ELEMENTS (pngs); i++)
+            {
+              g_autofree char *p = g_build_filename (out, pngs[i], NULL);
+              if (g_file_test (p, G_FILE_TEST_EXISTS))
+                g_printerr ("stripfleet run: warning: %s may be from an earlier run\n", p);
+            }
+        }
+    }
   if (replications > 1)
     print_spread (sums, (guint) replications);
   printf ("\n%s", CAUTION);
