@@ -217,9 +217,9 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const SfPushSpec *spec, Sf
   i_cut_end = MIN (i_cut_end, n);
   const guint k = MAX (1u, (guint) lround (SF_GRADE_HALF_WINDOW_M / dx));
 
-  /* Front of the cut zone and what is left in it. */
+  /* Front and back of the cut zone and what is left in it. */
   double left = 0;
-  gint i_f = -1;
+  gint i_f = -1, i_b = -1;
   for (guint i = 0; i < i_cut_end; i++)
     {
       double e = z[i] - target[i];
@@ -227,6 +227,8 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const SfPushSpec *spec, Sf
         {
           left += e * cell_area;
           i_f = (gint) i;
+          if (i_b < 0)
+            i_b = (gint) i;
         }
     }
   if (i_f < 0 || left < min_volume_lcm)
@@ -240,7 +242,8 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const SfPushSpec *spec, Sf
   const double h_edge = pm->blade_lcm / (w * pm->load_distance_m);
   double acc = 0;
   gint i_s = i_f;
-  while (i_s > 0)
+  /* (never further back than the last material: a part load starts there) */
+  while (i_s > i_b)
     {
       double e = z[i_s] - target[i_s];
       if (e > tol_m)

@@ -146,8 +146,12 @@ plan_apply (SfSlice *s, const SfBlockSection *bs, double *z, double *before, dou
   guint crest = find_edge (z, s->target, n, dx, end > 0 ? end - 1 : 0);
   memcpy (before, z, n * sizeof (double));
   guint front = crest;
-  double unfit = sf_heights_deposit_face (z, n, bs->x0_m, dx, crest, z[crest], bs->tan_repose,
-                                          area, &front);
+  /* as the pushes do: straight lines are filled up to the line */
+  double unfit = s->kind == SF_SLICE_STRAIGHT && !s->through_pivot
+                   ? sf_heights_deposit_capped (z, s->target, n, bs->x0_m, dx, crest, z[crest],
+                                                bs->tan_repose, area, &front)
+                   : sf_heights_deposit_face (z, n, bs->x0_m, dx, crest, z[crest],
+                                              bs->tan_repose, area, &front);
   double fx = 0, fz = 0;
   double fill = sf_heights_area_between (z, before, 0, n, bs->x0_m, dx, &fx, &fz);
   s->fill_lcm = fill * w;
