@@ -328,6 +328,23 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const SfPushSpec *spec, Sf
         break;
       if ((gint) i >= i_f && V <= 0)
         break;
+      /* Past the cut with a load, the ground ahead rises above the design or
+       * steeper than drivable before any drop-off: the fill has reached the
+       * far side (the previous spoil), there is no dump room left. */
+      if ((gint) i >= i_f && spec->dump_at_design && V > 0
+          && (z[i + 1] > target[i + 1] + SF_DESIGN_EDGE_M
+              || (z[i + 1] - z[i]) / dx > pm->max_drive_grade))
+        {
+          memcpy (z + i_s, lane->undo_z + i_s, (n - (guint) i_s) * sizeof (double));
+          memcpy (lane->dumped + i_s, lane->undo_dumped + i_s,
+                  (n - (guint) i_s) * sizeof (double));
+          double lost = V;
+          memset (res, 0, sizeof *res);
+          res->unplaced_lcm = lost;
+          res->x_start_m = lane->x0_m + i_s * dx;
+          res->x_dump_m = lane->x0_m + (i + 1) * dx;
+          return SF_PUSH_NO_ROOM;
+        }
     }
   const guint i_c = i;
 
