@@ -84,8 +84,9 @@ double
 sf_push_max_load_kg (const SfPushMachine *pm, double grade, double cut_depth_m,
                      SfLoadLimit *limit)
 {
-  const double t = atan (grade);
-  const double ct = cos (t), st = sin (t);
+  /* cos and sin of the slope angle from its tangent, without atan:
+   * cos t = 1 / sqrt (1 + g^2), sin t = g cos t */
+  const double ct = 1.0 / sqrt (1.0 + grade * grade), st = grade * ct;
   const double c = pm->carry_share;
   const double Wm = pm->weight_n;
   const double f_cut = pm->k_cut_pa * pm->blade_width_m * MAX (cut_depth_m, 0.0);
@@ -122,8 +123,9 @@ double
 sf_push_force_needed_n (const SfPushMachine *pm, double load_kg, double grade,
                         double cut_depth_m)
 {
-  const double t = atan (grade);
-  const double ct = cos (t), st = sin (t);
+  /* cos and sin of the slope angle from its tangent, without atan:
+   * cos t = 1 / sqrt (1 + g^2), sin t = g cos t */
+  const double ct = 1.0 / sqrt (1.0 + grade * grade), st = grade * ct;
   const double G = load_kg * SF_G_MS2;
   const double per_g = (1.0 - pm->carry_share) * pm->mu_soil * ct
                        + pm->mu_steel * pm->lift_factor + st;
@@ -400,8 +402,8 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const SfPushSpec *spec, Sf
   for (guint j = (guint) i_s; j <= i_c; j++)
     {
       double g_back = -grade_at (z, n, dx, j, k); /* travelling in -x */
-      double th = atan (g_back);
-      double f = pm->weight_n * (sin (th) + pm->return_resistance * cos (th));
+      double cb = 1.0 / sqrt (1.0 + g_back * g_back);
+      double f = pm->weight_n * (g_back * cb + pm->return_resistance * cb);
       t_ret += dx / sf_push_speed_ms (pm, f, pm->v_return_ms);
     }
 
