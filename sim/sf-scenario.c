@@ -30,8 +30,11 @@
 #include "sf-scenario.h"
 
 #include <cJSON.h>
+#include <errno.h>
+#include <fcntl.h>
 #include <math.h>
 #include <string.h>
+#include <unistd.h>
 #include <glib/gstdio.h>
 
 #include "sf-geom.h"
@@ -44,6 +47,60 @@ G_DEFINE_AUTOPTR_CLEANUP_FUNC (cJSON, cJSON_Delete)
 /* Largest scenario or section file read, bytes (a guard against reading a
  * wrong, huge file into memory). */
 #define MAX_INPUT_BYTES (64 * 1024 * 1024)
+
+/* Reads the whole of `path` into *text (NUL-terminated, caller frees), but
+ * never more than MAX_INPUT_BYTES: a pipe or a device that does not end
+ * (/dev/zero, /dev/stdin left open) is refused with the limit instead of
+ * filling memory, and a FIFO with no writer reads as empty instead of
+ * blocking.  Errors are G_FILE_ERROR with the system's reason (an input over
+ * the limit is G_FILE_ERROR_FAILED). */
+static gboolean
+read_bounded (const char *path, char **text, gsize *len, GError **error)
+{
+  int fd = g_open (path, O_RDONLY | O_NONBLOCK | O_CLOEXEC, 0);
+  if (fd < 0)
+    {
+      int e = errno;
+      g_set_error_literal (error, G_FILE_ERROR, g_file_error_from_errno (e), g_strerror (e));
+      return FALSE;
+    }
+  /* blocking reads from here on (O_NONBLOCK was only for opening a FIFO) */
+  int fl = fcntl (fd, F_GETFL);
+  if (fl >= 0)
+    fcntl (fd, F_SETFL, fl & ~O_NONBLOCK);
+  GString *buf = g_string_sized_new (4096);
+  char chunk[65536];
+  for (;;)
+    {
+      gssize n = read (fd, chunk, sizeof chunk);
+      if (n < 0 && errno == EINTR)
+        continue;
+      if (n < 0)
+        {
+          int e = errno;
+          g_set_error_literal (error, G_FILE_ERROR, g_file_error_from_errno (e), g_strerror (e));
+          break;
+        }
+      if (n == 0)
+        {
+          close (fd);
+          *len = buf->len;
+          *text = g_string_free (buf, FALSE);
+          return TRUE;
+        }
+      if (buf->len + (gsize) n > MAX_INPUT_BYTES)
+        {
+          g_set_error (error, G_FILE_ERROR, G_FILE_ERROR_FAILED,
+                       "larger than the limit of %d bytes (no end found within it)",
+                       MAX_INPUT_BYTES);
+          break;
+        }
+      g_string_append_len (buf, chunk, n);
+    }
+  close (fd);
+  g_string_free (buf, TRUE);
+  return FALSE;
+}
 
 /* ==== defaults and small public helpers =================================== */
 
@@ -965,7 +1022,7 @@ read_csv_points (Reader *r, const char *label, const char *file, const char *nam
                     named_by);
       return;
     }
-  if (!g_file_get_contents (file, &text, &len, &err))
+  if (!read_bounded (file, &text, &len, &err))
     {
       file_problem (r, SF_SCENARIO_ERROR_IO, label, 0, "cannot read this file (named by %s): %s",
                     named_by, err->message);
@@ -977,7 +1034,8 @@ read_csv_points (Reader *r, const char *label, const char *file, const char *nam
       guint line = 1;
       for (const char *p = text; p < bad; p++)
         line += *p == '\n';
-      file_problem (r, SF_SCENARIO_ERROR_SYNTAX, label, line, "not valid UTF-8 text");
+      file_problem (r, SF_SCENARIO_ERROR_SYNTAX, label, line,
+                    *bad ? "not valid UTF-8 text" : "a NUL byte: not a text file");
       return;
     }
   surface->complete = roof->complete = TRUE;
@@ -1133,6 +1191,55 @@ read_toe_and_edge (Reader *r, const SfScenario *sc, const StripState *st, const 
     }
 }
 
+/* Most ground over the coal roof that a section may show, m: the same limit
+ * as generated.overburden_m.  Beyond the highwall toe everything between
+ * the surface and the roof is loose material that the section lets settle
+ * at the angle of repose, and a column kilometres high (a wrong unit, a
+ * stray survey point) would take that settling hours. */
+#define MAX_COVER_M 300.0
+
+/* The surface at most MAX_COVER_M above the coal roof, checked at every
+ * vertex of either string within [x_lo, x_hi] and at x_lo and x_hi when
+ * finite (both strings are straight between those points, so that is
+ * everywhere). */
+static void
+check_cover (Reader *r, const GArray *surface, const GArray *roof, double x_lo, double x_hi)
+{
+  const SfPoint *s = (const SfPoint *)(void *)surface->data;
+  const SfPoint *c = (const SfPoint *)(void *)roof->data;
+  guint n_bad = 0;
+  double first_x = 0, first_s = 0, first_c = 0;
+  const SfPoint ends[2] = { { x_lo, 0 }, { x_hi, 0 } };
+  for (int k = 0; k < 3; k++)
+    {
+      const SfPoint *p = k == 0 ? s : k == 1 ? c : ends;
+      guint n = k == 0 ? surface->len : k == 1 ? roof->len : 2;
+      for (guint i = 0; i < n; i++)
+        {
+          if (!isfinite (p[i].x_m) || p[i].x_m < x_lo || p[i].x_m > x_hi)
+            continue;
+          double zs = k == 0 ? p[i].z_m : sf_polyline_eval (s, surface->len, p[i].x_m);
+          double zc = k == 1 ? p[i].z_m : sf_polyline_eval (c, roof->len, p[i].x_m);
+          if (zs - zc > MAX_COVER_M && n_bad++ == 0)
+            {
+              first_x = p[i].x_m;
+              first_s = zs;
+              first_c = zc;
+            }
+        }
+    }
+  if (n_bad)
+    {
+      g_autofree char *more = n_bad > 1 ? g_strdup_printf (" (and at %u more point%s)", n_bad - 1,
+                                                          n_bad == 2 ? "" : "s")
+                                        : g_strdup ("");
+      invalid (r, "surface stands %s m above the coal roof at x = %s m (surface z = %s m, roof "
+                  "z = %s m)%s; expected at most %g m of cover, as for generated.overburden_m",
+               num_mm (first_s - first_c).s, num (first_x).s, num_mm (first_s).s,
+               num_mm (first_c).s, more, MAX_COVER_M);
+    }
+}
+
 /* Checks surface and roof as strings and against each other, at the
  * reader's current path/label, then moves them into spec. */
 static void
@@ -1149,10 +1256,14 @@ finish_strings (Reader *r, const SfScenario *sc, const StripState *st, PointStri
     }
   if (surface->complete && surface->monotone && surface->pts->len >= 2 && roof->complete
       && roof->monotone && roof->pts->len >= 2)
-    check_roof_below_surface (r, surface->pts, roof->pts,
-                              spec->low_wall_edge_x_m > spec->highwall_toe_x_m
-                                ? spec->low_wall_edge_x_m
-                                : INFINITY);
+    {
+      check_roof_below_surface (r, surface->pts, roof->pts,
+                                spec->low_wall_edge_x_m > spec->highwall_toe_x_m
+                                  ? spec->low_wall_edge_x_m
+                                  : INFINITY);
+      check_cover (r, surface->pts, roof->pts, st->range_ok ? sc->strip.x_min_m : -INFINITY,
+                   st->range_ok ? sc->strip.x_max_m : INFINITY);
+    }
   spec->surface = g_steal_pointer (&surface->pts);
   spec->coal_roof = g_steal_pointer (&roof->pts);
 }
@@ -2646,7 +2757,7 @@ sf_scenario_load_from_file (const char *path, GError **error)
   g_autofree char *text = NULL;
   gsize len = 0;
   g_autoptr (GError) err = NULL;
-  if (!g_file_get_contents (path, &text, &len, &err))
+  if (!read_bounded (path, &text, &len, &err))
     {
       g_set_error (error, SF_SCENARIO_ERROR, SF_SCENARIO_ERROR_IO, "%s: cannot read the scenario: %s",
                    path, err->message);

@@ -962,6 +962,10 @@ static const BadCase bad_cases[] = {
   { "99-weibull-huge-scale.json", INV, 1, "dozer_classes[0].reliability.tbf_h.scale: impossible parameters for dist \"weibull\": expected a number in (0, 100000] h, found 1000000" },
   { "100-shift-name-duplicate.json", INV, 1, "roster.shifts[1].name: shift name \"day\" is already used by shifts[0]" },
   { "101-roster-sim-three-problems.json", INV, 3, "simulation.fitters: expected an integer in 0..1000, found 1001" },
+  /* found by fuzzing (docs/robustness.md); the cover limit is that of
+   * generated.overburden_m, and 637.76 - (-42.657) m is analytic (the
+   * surface interpolated at the roof vertex x = 40.25 m) */
+  { "102-csv-cover-too-high.json", INV, 1, "102-csv-cover-too-high.csv: surface stands 680.417 m above the coal roof at x = 40.25 m (surface z = 637.76 m, roof z = -42.657 m) (and at 1 more point); expected at most 300 m of cover" },
 };
 
 /* One table row: refused, right domain/code, the fragment, one line per
