@@ -628,8 +628,19 @@ guint
 sf_heights_relax (double *z, const double *base, guint n, double dx_m, double tan_repose,
                   guint i0, guint i1, double tol_m, guint *touched_lo, guint *touched_hi)
 {
+  guint64 moves = sf_heights_relax_max (z, base, n, dx_m, tan_repose, i0, i1, tol_m, G_MAXUINT64,
+                                        touched_lo, touched_hi, NULL);
+  return (guint) MIN (moves, (guint64) G_MAXUINT);
+}
+
+guint64
+sf_heights_relax_max (double *z, const double *base, guint n, double dx_m, double tan_repose,
+                      guint i0, guint i1, double tol_m, guint64 max_moves, guint *touched_lo,
+                      guint *touched_hi, gboolean *settled)
+{
   guint lo = MIN (i0, n), hi = lo;
-  guint moves = 0;
+  guint64 moves = 0;
+  gboolean stopped = FALSE;
   i1 = MIN (i1, n);
   if (z != NULL && n >= 2 && dx_m > 0 && tan_repose >= 0 && isfinite (tan_repose) && i0 < i1)
     {
@@ -651,6 +662,11 @@ sf_heights_relax (double *z, const double *base, guint n, double dx_m, double ta
             continue;
           if (base != NULL && !(z[h] > base[h] + tol))
             continue; /* nothing loose up there */
+          if (moves >= max_moves)
+            {
+              stopped = TRUE; /* a move is due but the budget is spent */
+              break;
+            }
           /* Half the excess over the limit leaves the pair exactly at it. */
           double m = 0.5 * (d - limit);
           if (base != NULL && m >= z[h] - base[h])
@@ -677,6 +693,8 @@ sf_heights_relax (double *z, const double *base, guint n, double dx_m, double ta
     *touched_lo = lo;
   if (touched_hi)
     *touched_hi = hi;
+  if (settled)
+    *settled = !stopped;
   return moves;
 }
 

@@ -99,6 +99,18 @@ double sf_heights_area_between (const double *upper, const double *lower, guint 
 guint sf_heights_relax (double *z, const double *base, guint n, double dx_m, double tan_repose,
                         guint i0, guint i1, double tol_m, guint *touched_lo, guint *touched_hi);
 
+/* The same with a budget: stops after max_moves pair adjustments, leaving z
+ * mass-conserving but not yet settled, and says so in *settled (may be
+ * NULL).  The cost of settling grows with the square of the length of
+ * over-steep ground in cells (each move evens one pair, and an excess spreads
+ * like heat), so a long stretch far steeper than repose at fine cells can
+ * take hours; callers that settle whole sections bound it with this.  Below
+ * the budget the result is exactly that of sf_heights_relax(). */
+guint64 sf_heights_relax_max (double *z, const double *base, guint n, double dx_m,
+                              double tan_repose, guint i0, guint i1, double tol_m,
+                              guint64 max_moves, guint *touched_lo, guint *touched_hi,
+                              gboolean *settled);
+
 /* Deposits `area_m2` of section area at a dump front: the material leaves the
  * blade at cell i_crest at level z_top_m and runs down ahead of it, so the new
  * surface beyond the crest is max(z_old, min(z_top, z_top - (x - x_f) tan))

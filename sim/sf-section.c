@@ -26,6 +26,17 @@
 #include "sf-util.h"
 
 #define BISECT_ITERS 80
+/* Watchdog on settling a block's surface at the angle of repose
+ * (sf_heights_relax_max): pair moves allowed before the section is refused.
+ * The demo strip needs at most 1.7e7 at 0.5 m cells and 5e8 at 0.1 m; the
+ * cost grows with the square of the over-steep length in cells, and 1e9
+ * moves take some 5 s (optimised build).  Fuzzing builds set a smaller
+ * budget (meson.build) so that every input ends in seconds under the
+ * sanitizers. */
+#ifndef SF_SETTLE_MAX_MOVES
+#define SF_SETTLE_MAX_MOVES 1000000000
+#endif
+#define SETTLE_MAX_MOVES ((guint64) (SF_SETTLE_MAX_MOVES))
 
 typedef struct {
   const SfSectionParams *p;
@@ -405,8 +416,19 @@ sf_block_section_new_from_set (const SfSectionSet *set, const SfScenario *sc, gu
                                                         : MAX (a->coal_m, b->coal_m);
   /* Loose ground cannot stand steeper than its angle of repose: surveyed or
    * interpolated strings that do (by survey roughness, say) settle first. */
-  sf_heights_relax (bs->surface, bs->base, bs->n, bs->dx_m, bs->tan_repose, 0, bs->n, 1e-9, NULL,
-                    NULL);
+  gboolean settled = TRUE;
+  sf_heights_relax_max (bs->surface, bs->base, bs->n, bs->dx_m, bs->tan_repose, 0, bs->n, 1e-9,
+                        SETTLE_MAX_MOVES, NULL, NULL, &settled);
+  if (!settled)
+    {
+      g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_GEOMETRY,
+                   "block %u: the loose ground does not settle at the angle of repose within "
+                   "%.0e cell moves: it stands far steeper than %g deg over a long stretch "
+                   "(is highwall_toe_x_m where the highwall face ends?); a coarser strip.cell_m "
+                   "than %g m also settles faster",
+                   block, (double) SETTLE_MAX_MOVES, sc->material.repose_deg, bs->dx_m);
+      return NULL;
+    }
 
   /* Standard pivot: the final spoil line rises from the low-wall toe (the
    * far edge of this strip's coal + toe offset, on the coal roof) away from
