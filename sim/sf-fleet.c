@@ -149,6 +149,7 @@ typedef struct {
   guint blasts_pending;
   SfReport *rep;
   gboolean stop;
+  gboolean cancelled;    /* stopped through opt.cancel */
   const char *end_reason;
   SfTime last_push;
   SfDailyRow day;
@@ -1048,6 +1049,21 @@ run_loop (World *w)
         }
       if ((w->events & 4095) == 0)
         progress_line (w, FALSE);
+      /* a cancel flag (set by a signal handler) and the event log are
+       * looked at every 1024 events: a few milliseconds of work.  A log
+       * that cannot be written (a full disk) ends the run at once; the
+       * report then fails with the reason and writes nothing. */
+      if ((w->events & 1023) == 0 && w->opt.cancel && *w->opt.cancel)
+        {
+          w->stop = TRUE;
+          w->cancelled = TRUE;
+          w->end_reason = "interrupted";
+        }
+      else if ((w->events & 1023) == 0 && sf_report_failed (w->rep))
+        {
+          w->stop = TRUE;
+          w->end_reason = "the event log cannot be written";
+        }
       if (w->events >= MAX_EVENTS)
         {
           w->stop = TRUE;
@@ -1188,7 +1204,21 @@ sf_run (const SfScenario *sc, const SfRunOptions *opt, SfRunSummary *sum, GError
       world_free (w);
       return FALSE;
     }
-  run_loop (w);
+  if (!(o.cancel && *o.cancel))
+    run_loop (w);
+  else
+    w->cancelled = TRUE;
+  if (w->cancelled)
+    {
+      /* nothing is written: the event log's temporary file goes, and the
+       * previous outputs in out_dir stay as they were */
+      progress_line (w, TRUE);
+      sf_report_abort (w->rep);
+      w->rep = NULL;
+      world_free (w);
+      g_set_error_literal (error, SF_MODEL_ERROR, SF_MODEL_ERROR_INTERRUPTED, "interrupted");
+      return FALSE;
+    }
   SfTime end = now_of (w);
   /* close every dozer's last interval at the end of the run */
   for (guint i = 0; i < w->n_dz; i++)

@@ -84,6 +84,10 @@ sf_report_new (const char *out_dir, const char *scenario_name, gboolean overwrit
       return NULL;
     }
   rep->dir = g_strdup (out_dir);
+  /* temporary files of a run that was killed before it could clean up */
+  static const char *const names[] = { "events.log", "schedule.csv", "daily.csv", "summary.json",
+                                       NULL };
+  sf_atomic_file_remove_stale (out_dir, names);
   g_autofree char *log_path = g_build_filename (out_dir, "events.log", NULL);
   rep->log = sf_atomic_file_open (log_path, error);
   if (!rep->log)
@@ -112,6 +116,12 @@ sf_report_event (SfReport *rep, SfTime t_ms, const char *kind, int dozer, int bl
       rep->log_failed = TRUE;
       rep->log_errno = errno;
     }
+}
+
+gboolean
+sf_report_failed (const SfReport *rep)
+{
+  return rep && rep->log_failed;
 }
 
 void
@@ -235,6 +245,24 @@ summary_json (const SfScenario *sc, const SfRunSummary *sum, guint64 seed)
   return root;
 }
 
+/* Opens a temporary file for dir/name holding text; NULL with the error
+ * naming the final path when it cannot be created or written. */
+static SfAtomicFile *
+stage_text (const char *dir, const char *name, const char *text, GError **error)
+{
+  g_autofree char *path = g_build_filename (dir, name, NULL);
+  SfAtomicFile *af = sf_atomic_file_open (path, error);
+  if (af && fputs (text, af->fp) < 0)
+    {
+      int e = errno;
+      g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (e), "cannot write %s: %s", path,
+                   g_strerror (e));
+      sf_atomic_file_abort (af);
+      return NULL;
+    }
+  return af;
+}
+
 gboolean
 sf_report_finish (SfReport *rep, const SfScenario *sc, const SfRunSummary *sum, GError **error)
 {
@@ -243,12 +271,12 @@ sf_report_finish (SfReport *rep, const SfScenario *sc, const SfRunSummary *sum, 
       sf_report_abort (rep);
       return TRUE;
     }
-  gboolean ok = TRUE;
   if (rep->log_failed)
     {
       g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (rep->log_errno),
                    "cannot write %s/events.log: %s", rep->dir, g_strerror (rep->log_errno));
-      ok = FALSE;
+      sf_report_abort (rep);
+      return FALSE;
     }
   g_autofree char *sched = schedule_csv (rep);
   g_autofree char *daily = daily_csv (rep);
@@ -257,25 +285,24 @@ sf_report_finish (SfReport *rep, const SfScenario *sc, const SfRunSummary *sum, 
   cJSON_Delete (root);
   g_autofree char *js2 = g_strconcat (js, "\n", NULL);
   cJSON_free (js);
-  struct {
-    const char *name;
-    const char *text;
-  } files[] = { { "schedule.csv", sched }, { "daily.csv", daily } };
-  for (gsize i = 0; ok && i < G_N_ELEMENTS (files); i++)
+  /* All four files are written and synced under temporary names before any
+   * of them is renamed, then renamed back to back; the summary last, so a
+   * summary always has its log, schedule and days beside it. */
+  SfAtomicFile *set[4] = { NULL, NULL, rep->log, NULL };
+  rep->log = NULL;
+  set[0] = stage_text (rep->dir, "schedule.csv", sched, error);
+  if (set[0])
+    set[1] = stage_text (rep->dir, "daily.csv", daily, error);
+  if (set[1])
+    set[3] = stage_text (rep->dir, "summary.json", js2, error);
+  gboolean ok;
+  if (set[0] && set[1] && set[3])
+    ok = sf_atomic_file_commit_all (set, G_N_ELEMENTS (set), error);
+  else
     {
-      g_autofree char *path = g_build_filename (rep->dir, files[i].name, NULL);
-      ok = sf_write_file_atomic (path, files[i].text, -1, error);
-    }
-  /* the log before the summary: a summary always has its log beside it */
-  if (ok)
-    {
-      ok = sf_atomic_file_commit (rep->log, error);
-      rep->log = NULL;
-    }
-  if (ok)
-    {
-      g_autofree char *path = g_build_filename (rep->dir, "summary.json", NULL);
-      ok = sf_write_file_atomic (path, js2, -1, error);
+      for (gsize i = 0; i < G_N_ELEMENTS (set); i++)
+        sf_atomic_file_abort (set[i]);
+      ok = FALSE;
     }
   sf_report_abort (rep);
   return ok;

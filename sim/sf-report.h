@@ -7,11 +7,14 @@
  *   schedule.csv  one row per block, lane and slice;
  *   daily.csv     one row per local calendar day;
  *   summary.json  volumes, rates, time usage and costs.
- * Every file is written under a temporary name beside its final name and
- * renamed into place only when complete (the event log too), so a run
- * killed at any moment leaves either the previous complete set or the new
- * one.  A folder whose summary.json names another scenario is refused unless
- * overwriting is asked for.
+ * Every file is written under a temporary (hidden) name beside its final
+ * name (the event log too); at the end all four are synced to disk before
+ * any is renamed, then renamed back to back with summary.json last
+ * (sf_atomic_file_commit_all), so a run killed at any moment leaves the
+ * previous complete set or the new one — short of a kill inside the few
+ * microseconds of the four renames.  Temporary files of a killed run are
+ * removed by the next run into the folder.  A folder whose summary.json
+ * names another scenario is refused unless overwriting is asked for.
  *
  * Memory: sf_report_new returns an owned SfReport; sf_report_finish and
  * sf_report_abort free it.  Rows are copied.
@@ -53,6 +56,10 @@ void sf_report_event (SfReport *rep, SfTime t_ms, const char *kind, int dozer, i
                       int slice, double a, double b, double c);
 void sf_report_schedule (SfReport *rep, const SfScheduleRow *row);
 void sf_report_daily (SfReport *rep, const SfDailyRow *row);
+/* TRUE once a write to the event log has failed (a full disk, say): the run
+ * can stop there, and sf_report_finish() fails with the reason.  NULL is
+ * fine (FALSE). */
+gboolean sf_report_failed (const SfReport *rep);
 
 /* Writes schedule.csv, daily.csv and summary.json and commits events.log.
  * Frees rep in every case. */

@@ -3,6 +3,7 @@
 
 #include <errno.h>
 #include <fcntl.h>
+#include <string.h>
 #include <unistd.h>
 #include <glib/gstdio.h>
 
@@ -20,7 +21,10 @@ sf_write_file_atomic (const char *path, const char *data, gssize len, GError **e
 SfAtomicFile *
 sf_atomic_file_open (const char *path, GError **error)
 {
-  g_autofree char *tmpl = g_strdup_printf ("%s.XXXXXX", path);
+  g_autofree char *dir = g_path_get_dirname (path);
+  g_autofree char *base = g_path_get_basename (path);
+  g_autofree char *tmp_name = g_strdup_printf (".%s.XXXXXX", base);
+  g_autofree char *tmpl = g_build_filename (dir, tmp_name, NULL);
   int fd = g_mkstemp_full (tmpl, O_WRONLY | O_CREAT | O_EXCL, 0644);
   if (fd < 0)
     {
@@ -46,8 +50,10 @@ sf_atomic_file_open (const char *path, GError **error)
   return af;
 }
 
-gboolean
-sf_atomic_file_commit (SfAtomicFile *af, GError **error)
+/* Flushes, syncs and closes af's temporary file; on failure sets the error
+ * (naming the final path) and removes the temporary file.  af is not freed. */
+static gboolean
+atomic_file_sync (SfAtomicFile *af, GError **error)
 {
   gboolean ok = TRUE;
   int e = 0;
@@ -62,21 +68,74 @@ sf_atomic_file_commit (SfAtomicFile *af, GError **error)
       e = errno;
     }
   af->fp = NULL;
-  if (ok && g_rename (af->tmp_path, af->final_path) != 0)
-    {
-      ok = FALSE;
-      e = errno;
-    }
   if (!ok)
     {
-      g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (e), "cannot write %s: %s",
-                   af->final_path, g_strerror (e ? e : EIO));
+      g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (e ? e : EIO),
+                   "cannot write %s: %s", af->final_path, g_strerror (e ? e : EIO));
       g_unlink (af->tmp_path);
     }
+  return ok;
+}
+
+static void
+atomic_file_free (SfAtomicFile *af)
+{
   g_free (af->tmp_path);
   g_free (af->final_path);
   g_free (af);
+}
+
+gboolean
+sf_atomic_file_commit_all (SfAtomicFile **afs, guint n, GError **error)
+{
+  gboolean ok = TRUE;
+  guint synced = 0;
+  for (; ok && synced < n; synced++)
+    ok = atomic_file_sync (afs[synced], error);
+  if (!ok)
+    {
+      /* afs[synced - 1] failed and removed its own file */
+      for (guint i = 0; i + 1 < synced; i++)
+        g_unlink (afs[i]->tmp_path);
+      for (guint i = synced; i < n; i++)
+        sf_atomic_file_abort (afs[i]);
+      for (guint i = 0; i < synced; i++)
+        atomic_file_free (afs[i]);
+      return FALSE;
+    }
+  for (guint i = 0; i < n; i++)
+    {
+      if (ok && g_rename (afs[i]->tmp_path, afs[i]->final_path) != 0)
+        {
+          int e = errno;
+          g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (e), "cannot write %s: %s",
+                       afs[i]->final_path, g_strerror (e));
+          ok = FALSE;
+        }
+      if (!ok)
+        g_unlink (afs[i]->tmp_path);
+    }
+  if (ok && n > 0)
+    {
+      /* the renames themselves on disk (a crash of the machine, not only of
+       * the process, keeps them) */
+      g_autofree char *dir = g_path_get_dirname (afs[0]->final_path);
+      int fd = g_open (dir, O_RDONLY | O_CLOEXEC, 0);
+      if (fd >= 0)
+        {
+          fsync (fd);
+          close (fd);
+        }
+    }
+  for (guint i = 0; i < n; i++)
+    atomic_file_free (afs[i]);
   return ok;
+}
+
+gboolean
+sf_atomic_file_commit (SfAtomicFile *af, GError **error)
+{
+  return sf_atomic_file_commit_all (&af, 1, error);
 }
 
 void
@@ -87,7 +146,31 @@ sf_atomic_file_abort (SfAtomicFile *af)
   if (af->fp)
     fclose (af->fp);
   g_unlink (af->tmp_path);
-  g_free (af->tmp_path);
-  g_free (af->final_path);
-  g_free (af);
+  atomic_file_free (af);
+}
+
+void
+sf_atomic_file_remove_stale (const char *dir, const char *const *names)
+{
+  g_autoptr (GDir) d = g_dir_open (dir, 0, NULL);
+  if (!d)
+    return;
+  const char *entry;
+  while ((entry = g_dir_read_name (d)))
+    for (const char *const *n = names; *n; n++)
+      {
+        gsize ln = strlen (*n);
+        /* ".NAME." followed by the six characters that g_mkstemp fills in */
+        if (entry[0] != '.' || strncmp (entry + 1, *n, ln) != 0 || entry[1 + ln] != '.'
+            || strlen (entry + 2 + ln) != 6)
+          continue;
+        gboolean tmpl_chars = TRUE;
+        for (const char *c = entry + 2 + ln; *c; c++)
+          tmpl_chars = tmpl_chars && g_ascii_isalnum (*c);
+        if (tmpl_chars)
+          {
+            g_autofree char *p = g_build_filename (dir, entry, NULL);
+            g_unlink (p);
+          }
+      }
 }

@@ -4,7 +4,9 @@
  *
  * Owns: error quarks, unit conversions, and atomic output files (a file is
  * written under a temporary name in its final folder and renamed into place
- * only when complete, so a reader never sees a half-written result).
+ * only when complete, so a reader never sees a half-written result).  The
+ * temporary name of FOLDER/NAME is FOLDER/.NAME.XXXXXX (hidden); one left
+ * behind by a killed process is removed by sf_atomic_file_remove_stale().
  */
 #pragma once
 
@@ -33,7 +35,18 @@ typedef struct {
 SfAtomicFile *sf_atomic_file_open (const char *path, GError **error);
 /* Flushes, syncs, closes and renames into place; frees af in every case. */
 gboolean sf_atomic_file_commit (SfAtomicFile *af, GError **error);
+/* Commits n files of one folder as a set: first every file is flushed,
+ * synced and closed, and only when all of them are on disk are they renamed
+ * into place, back to back in array order, and the folder synced.  On a
+ * failure before the renames no final name is touched and every temporary
+ * file is removed.  (A process killed between two renames — a window of a
+ * few system calls — leaves the earlier files new and the later ones old;
+ * put the file that marks a complete set last.)  Frees every af. */
+gboolean sf_atomic_file_commit_all (SfAtomicFile **afs, guint n, GError **error);
 /* Closes and removes the temporary file; frees af.  NULL is fine. */
 void sf_atomic_file_abort (SfAtomicFile *af);
+/* Removes the temporary files of `names` (NULL-terminated) that a killed
+ * process left in dir (.NAME.XXXXXX).  Errors are ignored. */
+void sf_atomic_file_remove_stale (const char *dir, const char *const *names);
 
 G_END_DECLS

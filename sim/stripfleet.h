@@ -12,6 +12,7 @@
  */
 #pragma once
 
+#include <signal.h>
 #include <glib.h>
 
 G_BEGIN_DECLS
@@ -45,6 +46,7 @@ typedef enum {
   SF_MODEL_ERROR_GEOMETRY,     /* a block's design cannot be laid out */
   SF_MODEL_ERROR_NO_PROGRESS,  /* a push or slice made no progress */
   SF_MODEL_ERROR_ARGUMENT,     /* block / lane / class index out of range */
+  SF_MODEL_ERROR_INTERRUPTED,  /* a run was stopped through SfRunOptions.cancel */
 } SfModelError;
 
 /* ---- scenario ------------------------------------------------------------ */
@@ -174,9 +176,13 @@ typedef struct {
   int only_block;           /* >= 0: only this block is worked (tests) */
   int only_lane;            /* >= 0: only this lane of each block is worked (tests) */
   guint replication;        /* index of the replication: selects the random streams */
+  const volatile sig_atomic_t *cancel; /* NULL, or a flag (set by a signal handler, say):
+                               when it becomes non-zero the run stops within about a
+                               thousand events and fails with SF_MODEL_ERROR_INTERRUPTED,
+                               writing nothing (the previous outputs stay as they were) */
 } SfRunOptions;
 
-#define SF_RUN_OPTIONS_INIT { NULL, FALSE, -1, 0, FALSE, FALSE, FALSE, -1, -1, 0 }
+#define SF_RUN_OPTIONS_INIT { NULL, FALSE, -1, 0, FALSE, FALSE, FALSE, -1, -1, 0, NULL }
 
 typedef struct {
   char *name;               /* "dz01", ... */
@@ -215,11 +221,14 @@ void sf_run_summary_clear (SfRunSummary *s);
 
 /* Runs the scenario once: every dozer of the fleet works the strip push by
  * push through simulated time.  Writes summary.json, schedule.csv, daily.csv
- * and events.log into opt->out_dir (each atomically: a killed run leaves the
+ * and events.log into opt->out_dir (as a set, under temporary names renamed
+ * into place only when all four are on disk: a killed run leaves the
  * previous complete files or the new ones), and fills *sum.  Fails when the
  * scenario cannot be laid out, the output folder cannot be written or holds
- * another scenario's outputs (unless overwrite), or the run makes no
- * progress (with the reason). */
+ * another scenario's outputs (unless overwrite), or opt->cancel was set
+ * (SF_MODEL_ERROR_INTERRUPTED, nothing written).  A run that stops short of
+ * the end (horizon, no progress, event limit) succeeds with
+ * sum->complete FALSE and the reason in sum->end_reason. */
 gboolean sf_run (const SfScenario *sc, const SfRunOptions *opt, SfRunSummary *sum,
                  GError **error);
 

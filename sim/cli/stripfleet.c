@@ -7,6 +7,7 @@
  * SF_EXIT_* values (docs/cli.md).
  */
 #include <locale.h>
+#include <signal.h>
 #include <stdio.h>
 #include <string.h>
 
@@ -470,6 +471,39 @@ print_spread (const SfRunSummary *sums, guint n)
     }
 }
 
+/* Set by SIGINT / SIGTERM during a run; the library stops at its next look
+ * (SfRunOptions.cancel) and writes nothing. */
+static volatile sig_atomic_t interrupted = 0;
+
+static void
+on_interrupt (int sig)
+{
+  (void) sig;
+  interrupted = 1;
+}
+
+/* SIGINT and SIGTERM set `interrupted`; a second one acts as usual (the
+ * handler is reset after the first), so a run that does not stop can still
+ * be killed.  A signal ignored at startup (nohup, a background job of a
+ * non-interactive shell) stays ignored. */
+static void
+catch_interrupts (void)
+{
+  static const int sigs[] = { SIGINT, SIGTERM };
+  for (gsize i = 0; i < G_N_ELEMENTS (sigs); i++)
+    {
+      struct sigaction old;
+      if (sigaction (sigs[i], NULL, &old) == 0 && old.sa_handler == SIG_IGN)
+        continue;
+      struct sigaction sa;
+      memset (&sa, 0, sizeof sa);
+      sa.sa_handler = on_interrupt;
+      sigemptyset (&sa.sa_mask);
+      sa.sa_flags = SA_RESETHAND;
+      sigaction (sigs[i], &sa, NULL);
+    }
+}
+
 static int
 verb_run (int argc, char **argv)
 {
@@ -523,6 +557,7 @@ verb_run (int argc, char **argv)
   o.n_dozers = dozers;
   o.progress = !quiet;
   o.no_randomness = no_random;
+  o.cancel = &interrupted;
   if (replications < 1 || replications > 10000 || threads < 0)
     {
       g_printerr ("stripfleet run: --replications: expected 1 to 10000, --threads: 0 or more\n");
@@ -530,11 +565,24 @@ verb_run (int argc, char **argv)
     }
   g_autofree SfRunSummary *sums = g_new0 (SfRunSummary, replications);
   g_autoptr (GError) err = NULL;
+  catch_interrupts ();
   gboolean ran = replications == 1
                    ? sf_run (sc, &o, &sums[0], &err)
                    : sf_run_replications (sc, &o, (guint) replications,
                                           threads > 0 ? (guint) threads : g_get_num_processors (),
                                           sums, &err);
+  if (!ran && g_error_matches (err, SF_MODEL_ERROR, SF_MODEL_ERROR_INTERRUPTED))
+    {
+      if (replications == 1 || !out)
+        g_printerr ("stripfleet run: interrupted; previous outputs (if any) left as they were\n");
+      else
+        /* replication 0 writes its files as soon as it is done, while the
+         * others may still be running */
+        g_printerr ("stripfleet run: interrupted; the outputs in %s are a complete set: "
+                    "replication 0's if it had finished, else the previous ones (if any)\n",
+                    out);
+      return SF_EXIT_RUNTIME;
+    }
   if (!ran)
     {
       g_printerr ("stripfleet run: %s\n", err->message);
