@@ -1,7 +1,7 @@
 /* SPDX-License-Identifier: MIT
  *
  * sf-fleet.c — one replication of the fleet working the strip through time
- * (the "world"; docs/model.md §7-§9).
+ * (the "world"; docs/model.md §7-§8).
  *
  * Owns: the run's kernel, random streams, block and lane states, dozers and
  * their state, the maintenance crew, the roster state and the recorders.
@@ -87,6 +87,7 @@ typedef struct {
   SfTime slice_start;    /* first push of the current slice, -1 */
   guint slice_pushes, slice_dozer;
   double slice_moved;
+  guint work_slice;      /* the slice last worked (valid index) */
 } LaneState;
 
 typedef struct {
@@ -122,7 +123,7 @@ typedef struct {
   SfTime cat_since;
   gint64 use_ms[SF_USE_N];
   guint pushes, failures;
-  double moved_bcm;
+  double moved_bcm, rehandled_bcm, over_spoil_bcm;
   SfTime engine_ms;
   SfRng *rng_fail, *rng_repair;
 } Dozer;
@@ -356,7 +357,7 @@ work_exists_open (World *w)
 
 static void dozer_work (World *w, Dozer *d);
 
-/* Sends a free dozer to a lane (docs/model.md §7 dispatch rules), or lets
+/* Sends a free dozer to a lane (docs/model.md §8 dispatch rules), or lets
  * it wait.  Returns TRUE when it got one. */
 static gboolean
 dispatch (World *w, Dozer *d)
@@ -402,9 +403,10 @@ dispatch (World *w, Dozer *d)
   w->blocks[best_b].n_dozers++;
   d->block = best_b;
   d->lane = best_l;
-  double dist_m = fabs ((double) best_l - (double) MAX (d->at_lane, 0)) * w->sc->strip.lane_width_m;
-  if (d->at_block >= 0 && d->at_block != best_b)
-    dist_m += fabs ((double) (best_b - d->at_block)) * w->block_len_m;
+  /* along strike: a lane's place is its block's start plus its lanes */
+  const double lw = w->sc->strip.lane_width_m;
+  double dist_m = fabs ((best_b * w->block_len_m + best_l * lw)
+                        - (MAX (d->at_block, 0) * w->block_len_m + MAX (d->at_lane, 0) * lw));
   if (d->at_block < 0)
     dist_m = 0; /* starts at its first lane */
   if (dist_m > 0)
@@ -486,6 +488,8 @@ dozer_work (World *w, Dozer *d)
   for (;;)
     {
       guint slice = ls->cur.slice;
+      if (slice < bk->plan->slices->len)
+        ls->work_slice = slice;
       SfStepKind st = sf_lane_cursor_step (&ls->cur, &d->pm, &d->pr);
       if (st == SF_STEP_PUSHED)
         {
@@ -510,8 +514,9 @@ dozer_work (World *w, Dozer *d)
           dozer_update (w, d);
           return;
         }
-      /* The slice ended (st == SLICE_DONE or LANE_DONE). */
-      record_slice (w, d->block, d->lane, ls, slice);
+      /* The slice ended (st == SLICE_DONE or LANE_DONE); a push that ended
+       * the lane (no progress) left the slice index past the end. */
+      record_slice (w, d->block, d->lane, ls, ls->work_slice);
       if (st == SF_STEP_LANE_DONE)
         {
           ls->done = TRUE;
@@ -608,6 +613,8 @@ on_act_end (World *w, Dozer *d)
       double bcm = r->deposited_lcm / (1.0 + w->sc->material.swell);
       d->pushes++;
       d->moved_bcm += bcm;
+      d->rehandled_bcm += r->rehandled_lcm / (1.0 + w->sc->material.swell);
+      d->over_spoil_bcm += r->over_spoil_lcm / (1.0 + w->sc->material.swell);
       w->last_push = now_of (w);
       w->day.pushes++;
       w->pushes++;
@@ -1142,6 +1149,8 @@ world_summarise (World *w, SfRunSummary *s, SfTime end)
                / SF_TIME_MS_PER_H;
       s->operating_h += op_h;
       s->dumped_bcm += d->moved_bcm;
+      s->rehandled_bcm += d->rehandled_bcm;
+      s->over_spoil_bcm += d->over_spoil_bcm;
       s->pushes += d->pushes;
       s->cost += r.cost;
       g_array_append_val (s->dozers, r);
