@@ -2,6 +2,7 @@
 #include "sf-test.h"
 #include <math.h>
 #include <stdio.h>
+#include <glib/gstdio.h>
 
 void
 sf_assert_close_impl (double a, double b, double abs_tol, double rel_tol, const char *sa,
@@ -22,4 +23,22 @@ sf_test_source_path (const char *rel)
 {
   const char *root = g_getenv ("SF_SOURCE_DIR");
   return g_build_filename (root ? root : ".", rel, NULL);
+}
+
+void
+sf_test_remove_tree (const char *path)
+{
+  g_autoptr (GDir) d = g_dir_open (path, 0, NULL);
+  if (d)
+    {
+      const char *n;
+      while ((n = g_dir_read_name (d)))
+        {
+          g_autofree char *p = g_build_filename (path, n, NULL);
+          sf_test_remove_tree (p);
+        }
+      g_rmdir (path);
+    }
+  else
+    g_unlink (path);
 }

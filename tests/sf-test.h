@@ -18,3 +18,6 @@ void sf_assert_close_impl (double a, double b, double abs_tol, double rel_tol, c
 
 /* Path of a file in the source tree (SF_SOURCE_DIR), newly allocated. */
 char *sf_test_source_path (const char *rel);
+
+/* Removes a file or a folder tree that a test made (recursively). */
+void sf_test_remove_tree (const char *path);

@@ -154,30 +154,12 @@ setup (void **state)
   return f->dir ? 0 : -1;
 }
 
-/* Removes a folder tree made by these tests. */
-static void
-remove_tree (const char *path)
-{
-  g_autoptr (GDir) d = g_dir_open (path, 0, NULL);
-  if (d)
-    {
-      const char *n;
-      while ((n = g_dir_read_name (d)))
-        {
-          g_autofree char *p = g_build_filename (path, n, NULL);
-          remove_tree (p);
-        }
-      g_rmdir (path);
-    }
-  else
-    g_unlink (path);
-}
 
 static int
 teardown (void **state)
 {
   Fixture *f = *state;
-  remove_tree (f->dir);
+  sf_test_remove_tree (f->dir);
   g_free (f->dir);
   g_free (f->demo);
   g_free (f->small);
