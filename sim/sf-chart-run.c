@@ -76,6 +76,7 @@ typedef struct {
 
 typedef struct {
   char *scenario;
+  gboolean invented;     /* the scenario's description says it is invented */
   char *start_iso;
   GDateTime *start;
   gboolean complete;
@@ -236,6 +237,8 @@ read_summary (RunData *rd, const char *dir, GError **error)
                        error)
        && json_number (rates, "bcm_per_operating_h", "rates.", path, 0,
                        &rd->bcm_per_operating_h, error);
+  const cJSON *desc = cJSON_GetObjectItemCaseSensitive (root, "description");
+  rd->invented = cJSON_IsString (desc) && strstr (desc->valuestring, "nvented") != NULL;
   if (ok)
     {
       const cJSON *c = cJSON_GetObjectItemCaseSensitive (root, "complete");
@@ -592,7 +595,8 @@ run_state (const RunData *rd)
 static void
 run_footer (cairo_t *cr, const RunData *rd, int w, int h)
 {
-  g_autofree char *extra = fmt ("fleet run of scenario '%s'", rd->scenario);
+  g_autofree char *extra = fmt ("fleet run of scenario '%s'%s", rd->scenario,
+                                rd->invented ? " (invented scenario)" : "");
   page_caution (cr, w, h, extra);
 }
 

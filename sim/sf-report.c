@@ -191,6 +191,7 @@ summary_json (const SfScenario *sc, const SfRunSummary *sum, guint64 seed)
   cJSON *root = cJSON_CreateObject ();
   cJSON_AddStringToObject (root, "format", FORMAT_TAG);
   cJSON_AddStringToObject (root, "scenario", sc->name);
+  cJSON_AddStringToObject (root, "description", sc->description ? sc->description : "");
   cJSON_AddStringToObject (root, "note", "Planning estimate only, not a work instruction; defer "
                                          "to local regulations, site procedures and licensed "
                                          "practice.");
