@@ -203,6 +203,22 @@ sf_heights_is_edge (const double *z, guint n, double dx_m, guint i, double grade
          && (z[i + 1] - z[i]) / dx_m < -grade;
 }
 
+/* A push whose load finds no dump room is not made: the lane goes back to
+ * how it was before the push (from cell i_s on) and the result says how
+ * much would not have fitted. */
+static SfPushStatus
+push_not_made (SfLane *lane, guint i_s, guint i_end, double lost_lcm, SfPushResult *res)
+{
+  const gsize len = (lane->n - i_s) * sizeof (double);
+  memcpy (lane->z + i_s, lane->undo_z + i_s, len);
+  memcpy (lane->dumped + i_s, lane->undo_dumped + i_s, len);
+  memset (res, 0, sizeof *res);
+  res->unplaced_lcm = lost_lcm;
+  res->x_start_m = lane->x0_m + i_s * lane->dx_m;
+  res->x_dump_m = lane->x0_m + i_end * lane->dx_m;
+  return SF_PUSH_NO_ROOM;
+}
+
 /* Distance below the target at which ground ahead counts as a drop-off (m). */
 #define SF_DESIGN_EDGE_M 0.5
 
@@ -337,15 +353,7 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const SfPushSpec *spec, Sf
           && (z[i + 1] > target[i + 1] + SF_DESIGN_EDGE_M
               || (z[i + 1] - z[i]) / dx > pm->max_drive_grade))
         {
-          memcpy (z + i_s, lane->undo_z + i_s, (n - (guint) i_s) * sizeof (double));
-          memcpy (lane->dumped + i_s, lane->undo_dumped + i_s,
-                  (n - (guint) i_s) * sizeof (double));
-          double lost = V;
-          memset (res, 0, sizeof *res);
-          res->unplaced_lcm = lost;
-          res->x_start_m = lane->x0_m + i_s * dx;
-          res->x_dump_m = lane->x0_m + (i + 1) * dx;
-          return SF_PUSH_NO_ROOM;
+          return push_not_made (lane, (guint) i_s, i + 1, V, res);
         }
     }
   const guint i_c = i;
@@ -373,15 +381,7 @@ sf_push_cycle (const SfPushMachine *pm, SfLane *lane, const SfPushSpec *spec, Sf
       if (unfit > 0)
         {
           /* No room beyond the edge: an operator would not make this push. */
-          double lost = unfit * w;
-          memcpy (z + i_s, lane->undo_z + i_s, (n - (guint) i_s) * sizeof (double));
-          memcpy (lane->dumped + i_s, lane->undo_dumped + i_s,
-                  (n - (guint) i_s) * sizeof (double));
-          memset (res, 0, sizeof *res);
-          res->unplaced_lcm = lost;
-          res->x_start_m = lane->x0_m + i_s * dx;
-          res->x_dump_m = lane->x0_m + (i_c + 1) * dx;
-          return SF_PUSH_NO_ROOM;
+          return push_not_made (lane, (guint) i_s, i_c + 1, unfit * w, res);
         }
       res->deposited_lcm = V;
       dirty_hi = MAX (dirty_hi, i_front + 2);
