@@ -32,8 +32,10 @@
 #include <stdlib.h>
 #include <string.h>
 #include <unistd.h>
+#include <glib/gstdio.h>
 
 #include "sf-kernel.h"
+#include "sf-outdir.h"
 #include "sf-push.h"
 #include "sf-reliability.h"
 #include "sf-report.h"
@@ -1181,16 +1183,17 @@ sf_run_summary_clear (SfRunSummary *s)
         }
       g_array_unref (s->dozers);
     }
+  g_free (s->notice);
   memset (s, 0, sizeof *s);
 }
 
-gboolean
-sf_run (const SfScenario *sc, const SfRunOptions *opt, SfRunSummary *sum, GError **error)
+/* One run; its four files go into write_dir (NULL: none), named in
+ * messages as shown_dir. */
+static gboolean
+run_one (const SfScenario *sc, const SfRunOptions *opt, const char *write_dir,
+         const char *shown_dir, SfRunSummary *sum, GError **error)
 {
-  g_return_val_if_fail (sc != NULL && sum != NULL, FALSE);
-  SfRunOptions o = SF_RUN_OPTIONS_INIT;
-  if (opt)
-    o = *opt;
+  SfRunOptions o = *opt;
   memset (sum, 0, sizeof *sum);
   if (o.only_block >= (int) sc->strip.n_blocks || o.only_lane >= (int) sf_scenario_get_n_lanes (sc))
     {
@@ -1207,7 +1210,7 @@ sf_run (const SfScenario *sc, const SfRunOptions *opt, SfRunSummary *sum, GError
   World *w = world_new (sc, &o, error);
   if (!w)
     return FALSE;
-  w->rep = sf_report_new (o.out_dir, sc->name, o.overwrite, sc->sim.start, w->seed, error);
+  w->rep = sf_report_new (write_dir, shown_dir, sc->name, sc->sim.start, w->seed, error);
   if (!w->rep)
     {
       world_free (w);
@@ -1219,7 +1222,7 @@ sf_run (const SfScenario *sc, const SfRunOptions *opt, SfRunSummary *sum, GError
     w->cancelled = TRUE;
   if (w->cancelled)
     {
-      /* nothing is written: the event log's temporary file goes, and the
+      /* nothing is kept: the caller drops the staging folder, and the
        * previous outputs in out_dir stay as they were */
       progress_line (w, TRUE);
       sf_report_abort (w->rep);
@@ -1249,11 +1252,12 @@ sf_run (const SfScenario *sc, const SfRunOptions *opt, SfRunSummary *sum, GError
   return ok;
 }
 
-/* ---- replications ---------------------------------------------------------- */
+/* ---- replications and the output set ------------------------------------- */
 
 typedef struct {
   const SfScenario *sc;
   SfRunOptions opt;
+  const char *write_dir;  /* replication 0's files; NULL: none */
   SfRunSummary *sums;
   GError **errors;
   gboolean *ok;
@@ -1265,22 +1269,58 @@ rep_worker (gpointer data, gpointer user_data)
   RepJob *job = user_data;
   guint r = GPOINTER_TO_UINT (data) - 1;
   SfRunOptions o = job->opt;
-  o.replication = r;
-  o.progress = FALSE;
+  o.replication += r;
   if (r > 0)
-    o.out_dir = NULL;
-  job->ok[r] = sf_run (job->sc, &o, &job->sums[r], &job->errors[r]);
+    o.progress = FALSE;
+  job->ok[r] = run_one (job->sc, &o, r == 0 ? job->write_dir : NULL,
+                        r == 0 ? job->opt.out_dir : NULL, &job->sums[r], &job->errors[r]);
 }
 
-gboolean
-sf_run_replications (const SfScenario *sc, const SfRunOptions *opt, guint n, guint n_threads,
-                     SfRunSummary *sums, GError **error)
+static char *
+replications_csv (const SfRunSummary *sums, guint n)
 {
-  g_return_val_if_fail (sc != NULL && sums != NULL && n > 0, FALSE);
-  RepJob job = { sc, SF_RUN_OPTIONS_INIT, sums, g_new0 (GError *, n), g_new0 (gboolean, n) };
-  if (opt)
-    job.opt = *opt;
-  if (n_threads <= 1)
+  GString *csv = g_string_new ("replication,complete,calendar_h,moved_bcm,"
+                               "bcm_per_operating_h,bcm_per_calendar_h,strip_m_per_day,"
+                               "coal_t_per_day,cost_per_bcm,failures\n");
+  for (guint r = 0; r < n; r++)
+    {
+      guint failures = 0;
+      for (guint i = 0; i < sums[r].dozers->len; i++)
+        failures += g_array_index (sums[r].dozers, SfDozerResult, i).failures;
+      g_string_append_printf (csv, "%u,%d,%.4f,%.2f,%.3f,%.3f,%.3f,%.1f,%.4f,%u\n", r,
+                              sums[r].complete, sums[r].calendar_h, sums[r].moved_bcm,
+                              sums[r].bcm_per_operating_h, sums[r].bcm_per_calendar_h,
+                              sums[r].strip_m_per_day, sums[r].coal_t_per_day,
+                              sums[r].cost_per_bcm, failures);
+    }
+  return g_string_free (csv, FALSE);
+}
+
+/* Replications first .. first+n-1 into sums[0 .. n-1], on up to n_threads
+ * threads, and the output set: begun before the first event (a folder that
+ * cannot be used fails at once), written by replication 0 and the steps
+ * after it, committed as a whole at the end — or dropped on any failure. */
+static gboolean
+run_set (const SfScenario *sc, const SfRunOptions *opt, guint first, guint n, guint n_threads,
+         SfRunSummary *sums, GError **error)
+{
+  RepJob job = { sc, *opt, NULL, sums, g_new0 (GError *, n), g_new0 (gboolean, n) };
+  job.opt.replication = first;
+  SfOutDir *od = NULL;
+  if (opt->out_dir)
+    {
+      od = sf_outdir_begin (opt->out_dir, sc->name, opt->overwrite, FALSE, error);
+      if (!od)
+        {
+          g_free (job.errors);
+          g_free (job.ok);
+          for (guint r = 0; r < n; r++)
+            memset (&sums[r], 0, sizeof sums[r]);
+          return FALSE;
+        }
+      job.write_dir = sf_outdir_staging (od);
+    }
+  if (n_threads <= 1 || n == 1)
     for (guint r = 0; r < n; r++)
       rep_worker (GUINT_TO_POINTER (r + 1), &job);
   else
@@ -1299,27 +1339,47 @@ sf_run_replications (const SfScenario *sc, const SfRunOptions *opt, guint n, gui
         g_propagate_error (error, job.errors[r]);
         job.errors[r] = NULL;
       }
-  if (ok && n > 1 && job.opt.out_dir)
+  if (ok && od && n > 1)
     {
-      /* one row per replication, beside replication 0's files */
-      GString *csv = g_string_new ("replication,complete,calendar_h,moved_bcm,"
-                                   "bcm_per_operating_h,bcm_per_calendar_h,strip_m_per_day,"
-                                   "coal_t_per_day,cost_per_bcm,failures\n");
-      for (guint r = 0; r < n; r++)
+      g_autofree char *csv = replications_csv (sums, n);
+      g_autofree char *path = g_build_filename (job.write_dir, "replications.csv", NULL);
+      g_autoptr (GError) werr = NULL;
+      if (!g_file_set_contents (path, csv, -1, &werr))
         {
-          guint failures = 0;
-          for (guint i = 0; i < sums[r].dozers->len; i++)
-            failures += g_array_index (sums[r].dozers, SfDozerResult, i).failures;
-          g_string_append_printf (csv, "%u,%d,%.4f,%.2f,%.3f,%.3f,%.3f,%.1f,%.4f,%u\n", r,
-                                  sums[r].complete, sums[r].calendar_h, sums[r].moved_bcm,
-                                  sums[r].bcm_per_operating_h, sums[r].bcm_per_calendar_h,
-                                  sums[r].strip_m_per_day, sums[r].coal_t_per_day,
-                                  sums[r].cost_per_bcm, failures);
+          g_autofree char *m = sf_outdir_shown (od, werr->message);
+          g_set_error_literal (error, G_FILE_ERROR, werr->code, m);
+          ok = FALSE;
         }
-      g_autofree char *path = g_build_filename (job.opt.out_dir, "replications.csv", NULL);
-      ok = sf_write_file_atomic (path, csv->str, (gssize) csv->len, error);
-      g_string_free (csv, TRUE);
     }
+  GString *notice = g_string_new (NULL);
+  if (ok && od && opt->charts)
+    {
+      g_autoptr (GError) cerr = NULL;
+      sums[0].charts_drawn = sf_chart_run_outputs (job.write_dir, &cerr);
+      if (!sums[0].charts_drawn)
+        {
+          g_autofree char *m = sf_outdir_shown (od, cerr->message);
+          g_string_append_printf (notice, "charts not drawn: %s", m);
+          /* no chart of this run's set rather than some */
+          static const char *const pngs[] = { "daily.png", "usage.png", "schedule.png" };
+          for (gsize i = 0; i < G_N_ELEMENTS (pngs); i++)
+            {
+              g_autofree char *p = g_build_filename (job.write_dir, pngs[i], NULL);
+              g_unlink (p);
+            }
+        }
+    }
+  if (ok && od)
+    {
+      g_autofree char *kept = NULL;
+      ok = sf_outdir_commit (g_steal_pointer (&od), &kept, error);
+      if (kept)
+        g_string_append_printf (notice, "%s%s", notice->len ? "\n" : "", kept);
+    }
+  sf_outdir_abort (od);
+  if (ok && notice->len)
+    sums[0].notice = g_strdup (notice->str);
+  g_string_free (notice, TRUE);
   for (guint r = 0; r < n; r++)
     {
       g_clear_error (&job.errors[r]);
@@ -1329,6 +1389,28 @@ sf_run_replications (const SfScenario *sc, const SfRunOptions *opt, guint n, gui
   g_free (job.errors);
   g_free (job.ok);
   return ok;
+}
+
+gboolean
+sf_run (const SfScenario *sc, const SfRunOptions *opt, SfRunSummary *sum, GError **error)
+{
+  g_return_val_if_fail (sc != NULL && sum != NULL, FALSE);
+  SfRunOptions o = SF_RUN_OPTIONS_INIT;
+  if (opt)
+    o = *opt;
+  return run_set (sc, &o, o.replication, 1, 1, sum, error);
+}
+
+gboolean
+sf_run_replications (const SfScenario *sc, const SfRunOptions *opt, guint n, guint n_threads,
+                     SfRunSummary *sums, GError **error)
+{
+  g_return_val_if_fail (sc != NULL && sums != NULL && n > 0, FALSE);
+  SfRunOptions o = SF_RUN_OPTIONS_INIT;
+  if (opt)
+    o = *opt;
+  o.progress = FALSE;
+  return run_set (sc, &o, 0, n, n_threads, sums, error);
 }
 
 static int

@@ -17,9 +17,10 @@
 #define FORMAT_TAG "stripfleet-run-1"
 
 struct _SfReport {
-  char *dir;                 /* NULL: nothing is written */
+  char *dir;                 /* where the files go (a staging folder); NULL: nothing is written */
   GDateTime *start;          /* borrowed from the scenario */
-  SfAtomicFile *log;         /* events.log being written */
+  char *shown;               /* the folder as the user named it, for messages */
+  FILE *log;                 /* events.log being written */
   GArray *schedule;          /* SfScheduleRow */
   GArray *daily;             /* SfDailyRow */
   guint64 seed;
@@ -34,28 +35,38 @@ sf_report_iso (GDateTime *start, SfTime t_ms)
   return g_date_time_format (t, "%Y-%m-%dT%H:%M:%S%:z");
 }
 
-/* The scenario named by an existing summary.json in dir, or NULL. */
-static char *
-existing_scenario (const char *dir)
+/* dir/name, opened for writing; NULL with the error naming shown/name */
+static FILE *
+open_out (const SfReport *rep, const char *name, GError **error)
 {
-  g_autofree char *path = g_build_filename (dir, "summary.json", NULL);
-  g_autofree char *text = NULL;
-  gsize len = 0;
-  if (!g_file_get_contents (path, &text, &len, NULL))
-    return NULL;
-  cJSON *root = cJSON_ParseWithLength (text, len);
-  char *name = NULL;
-  const cJSON *sc = cJSON_GetObjectItemCaseSensitive (root, "scenario");
-  if (cJSON_IsString (sc))
-    name = g_strdup (sc->valuestring);
-  else
-    name = g_strdup ("(unreadable summary.json)");
-  cJSON_Delete (root);
-  return name;
+  g_autofree char *path = g_build_filename (rep->dir, name, NULL);
+  FILE *fp = fopen (path, "we");
+  if (!fp)
+    {
+      int e = errno;
+      g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (e), "cannot write %s/%s: %s",
+                   rep->shown, name, g_strerror (e));
+    }
+  return fp;
+}
+
+/* Closes fp, reporting a failed write (a full disk, say) naming shown/name. */
+static gboolean
+close_out (const SfReport *rep, FILE *fp, const char *name, int earlier_errno, GError **error)
+{
+  int e = earlier_errno;
+  if (fflush (fp) != 0 || ferror (fp))
+    e = e ? e : (errno ? errno : EIO);
+  if (fclose (fp) != 0)
+    e = e ? e : errno;
+  if (e)
+    g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (e), "cannot write %s/%s: %s",
+                 rep->shown, name, g_strerror (e));
+  return e == 0;
 }
 
 SfReport *
-sf_report_new (const char *out_dir, const char *scenario_name, gboolean overwrite,
+sf_report_new (const char *write_dir, const char *shown_dir, const char *scenario_name,
                GDateTime *start, guint64 seed, GError **error)
 {
   SfReport *rep = g_new0 (SfReport, 1);
@@ -63,40 +74,18 @@ sf_report_new (const char *out_dir, const char *scenario_name, gboolean overwrit
   rep->seed = seed;
   rep->schedule = g_array_new (FALSE, TRUE, sizeof (SfScheduleRow));
   rep->daily = g_array_new (FALSE, TRUE, sizeof (SfDailyRow));
-  if (!out_dir)
+  if (!write_dir)
     return rep;
-  if (g_mkdir_with_parents (out_dir, 0755) != 0)
-    {
-      int e = errno;
-      g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (e),
-                   "cannot create the output folder %s: %s", out_dir, g_strerror (e));
-      sf_report_abort (rep);
-      return NULL;
-    }
-  g_autofree char *other = existing_scenario (out_dir);
-  if (other && g_strcmp0 (other, scenario_name) != 0 && !overwrite)
-    {
-      g_set_error (error, G_FILE_ERROR, G_FILE_ERROR_EXIST,
-                   "the output folder %s holds the outputs of scenario '%s', not '%s'; choose "
-                   "another folder or allow overwriting (--overwrite)",
-                   out_dir, other, scenario_name);
-      sf_report_abort (rep);
-      return NULL;
-    }
-  rep->dir = g_strdup (out_dir);
-  /* temporary files of a run that was killed before it could clean up */
-  static const char *const names[] = { "events.log", "schedule.csv", "daily.csv", "summary.json",
-                                       NULL };
-  sf_atomic_file_remove_stale (out_dir, names);
-  g_autofree char *log_path = g_build_filename (out_dir, "events.log", NULL);
-  rep->log = sf_atomic_file_open (log_path, error);
+  rep->dir = g_strdup (write_dir);
+  rep->shown = g_strdup (shown_dir ? shown_dir : write_dir);
+  rep->log = open_out (rep, "events.log", error);
   if (!rep->log)
     {
       sf_report_abort (rep);
       return NULL;
     }
   g_autofree char *iso = sf_report_iso (start, 0);
-  fprintf (rep->log->fp,
+  fprintf (rep->log,
            "# %s events\n# scenario: %s\n# start: %s\n# seed: %" G_GUINT64_FORMAT "\n"
            "# t_ms kind dozer block lane slice a b c\n",
            FORMAT_TAG, scenario_name, iso, seed);
@@ -109,7 +98,7 @@ sf_report_event (SfReport *rep, SfTime t_ms, const char *kind, int dozer, int bl
 {
   if (!rep || !rep->log)
     return;
-  if (fprintf (rep->log->fp, "%" G_GINT64_FORMAT " %s %d %d %d %d %.3f %.3f %.3f\n", t_ms, kind,
+  if (fprintf (rep->log, "%" G_GINT64_FORMAT " %s %d %d %d %d %.3f %.3f %.3f\n", t_ms, kind,
                dozer, block, lane, slice, a, b, c)
       < 0 && !rep->log_failed)
     {
@@ -141,7 +130,9 @@ sf_report_abort (SfReport *rep)
 {
   if (!rep)
     return;
-  sf_atomic_file_abort (rep->log);
+  if (rep->log)
+    fclose (rep->log);
+  g_free (rep->shown);
   g_array_unref (rep->schedule);
   g_array_unref (rep->daily);
   g_free (rep->dir);
@@ -246,22 +237,15 @@ summary_json (const SfScenario *sc, const SfRunSummary *sum, guint64 seed)
   return root;
 }
 
-/* Opens a temporary file for dir/name holding text; NULL with the error
- * naming the final path when it cannot be created or written. */
-static SfAtomicFile *
-stage_text (const char *dir, const char *name, const char *text, GError **error)
+/* Writes shown/name from text. */
+static gboolean
+write_out (const SfReport *rep, const char *name, const char *text, GError **error)
 {
-  g_autofree char *path = g_build_filename (dir, name, NULL);
-  SfAtomicFile *af = sf_atomic_file_open (path, error);
-  if (af && fputs (text, af->fp) < 0)
-    {
-      int e = errno;
-      g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (e), "cannot write %s: %s", path,
-                   g_strerror (e));
-      sf_atomic_file_abort (af);
-      return NULL;
-    }
-  return af;
+  FILE *fp = open_out (rep, name, error);
+  if (!fp)
+    return FALSE;
+  int e = fputs (text, fp) < 0 ? errno : 0;
+  return close_out (rep, fp, name, e, error);
 }
 
 gboolean
@@ -272,10 +256,9 @@ sf_report_finish (SfReport *rep, const SfScenario *sc, const SfRunSummary *sum, 
       sf_report_abort (rep);
       return TRUE;
     }
-  if (rep->log_failed)
+  FILE *log = g_steal_pointer (&rep->log);
+  if (!close_out (rep, log, "events.log", rep->log_failed ? rep->log_errno : 0, error))
     {
-      g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (rep->log_errno),
-                   "cannot write %s/events.log: %s", rep->dir, g_strerror (rep->log_errno));
       sf_report_abort (rep);
       return FALSE;
     }
@@ -286,25 +269,11 @@ sf_report_finish (SfReport *rep, const SfScenario *sc, const SfRunSummary *sum, 
   cJSON_Delete (root);
   g_autofree char *js2 = g_strconcat (js, "\n", NULL);
   cJSON_free (js);
-  /* All four files are written and synced under temporary names before any
-   * of them is renamed, then renamed back to back; the summary last, so a
-   * summary always has its log, schedule and days beside it. */
-  SfAtomicFile *set[4] = { NULL, NULL, rep->log, NULL };
-  rep->log = NULL;
-  set[0] = stage_text (rep->dir, "schedule.csv", sched, error);
-  if (set[0])
-    set[1] = stage_text (rep->dir, "daily.csv", daily, error);
-  if (set[1])
-    set[3] = stage_text (rep->dir, "summary.json", js2, error);
-  gboolean ok;
-  if (set[0] && set[1] && set[3])
-    ok = sf_atomic_file_commit_all (set, G_N_ELEMENTS (set), error);
-  else
-    {
-      for (gsize i = 0; i < G_N_ELEMENTS (set); i++)
-        sf_atomic_file_abort (set[i]);
-      ok = FALSE;
-    }
+  /* into the run's staging folder: the files become the output folder
+   * together, when the run commits its output set (sf-outdir.h) */
+  gboolean ok = write_out (rep, "schedule.csv", sched, error)
+                && write_out (rep, "daily.csv", daily, error)
+                && write_out (rep, "summary.json", js2, error);
   sf_report_abort (rep);
   return ok;
 }

@@ -2,19 +2,15 @@
  *
  * sf-report.h — the output files of a fleet run (internal to sim/).
  *
- * Owns: the output folder of one run and its four files (docs/output-formats.md):
- *   events.log    one line per event, streamed to a temporary file while the run goes;
+ * Owns: the four files of one run (docs/output-formats.md):
+ *   events.log    one line per event, streamed while the run goes;
  *   schedule.csv  one row per block, lane and slice;
  *   daily.csv     one row per local calendar day;
  *   summary.json  volumes, rates, time usage and costs.
- * Every file is written under a temporary (hidden) name beside its final
- * name (the event log too); at the end all four are synced to disk before
- * any is renamed, then renamed back to back with summary.json last
- * (sf_atomic_file_commit_all), so a run killed at any moment leaves the
- * previous complete set or the new one — short of a kill inside the few
- * microseconds of the four renames.  Temporary files of a killed run are
- * removed by the next run into the folder.  A folder whose summary.json
- * names another scenario is refused unless overwriting is asked for.
+ * The files are written into the folder the caller gives — the staging
+ * folder of the run's output set (sf-outdir.h), which becomes the output
+ * folder as a whole when the run commits; messages name the folder the user
+ * named instead.
  *
  * Memory: sf_report_new returns an owned SfReport; sf_report_finish and
  * sf_report_abort free it.  Rows are copied.
@@ -47,8 +43,9 @@ typedef struct {
   double weather_h;
 } SfDailyRow;
 
-/* out_dir NULL: a report that writes nothing (rows are still kept). */
-SfReport *sf_report_new (const char *out_dir, const char *scenario_name, gboolean overwrite,
+/* write_dir NULL: a report that writes nothing (rows are still kept).
+ * shown_dir (NULL: write_dir) stands for write_dir in messages. */
+SfReport *sf_report_new (const char *write_dir, const char *shown_dir, const char *scenario_name,
                          GDateTime *start, guint64 seed, GError **error);
 
 /* One event-log line: time, kind, dozer, then up to three numbers. */
@@ -61,8 +58,8 @@ void sf_report_daily (SfReport *rep, const SfDailyRow *row);
  * fine (FALSE). */
 gboolean sf_report_failed (const SfReport *rep);
 
-/* Writes schedule.csv, daily.csv and summary.json and commits events.log.
- * Frees rep in every case. */
+/* Closes events.log and writes schedule.csv, daily.csv and summary.json
+ * beside it.  Frees rep in every case. */
 gboolean sf_report_finish (SfReport *rep, const SfScenario *sc, const SfRunSummary *sum,
                            GError **error);
 void sf_report_abort (SfReport *rep);

@@ -3,6 +3,7 @@
 
 #include <errno.h>
 #include <fcntl.h>
+#include <signal.h>
 #include <string.h>
 #include <unistd.h>
 #include <glib/gstdio.h>
@@ -150,27 +151,9 @@ sf_atomic_file_abort (SfAtomicFile *af)
 }
 
 void
-sf_atomic_file_remove_stale (const char *dir, const char *const *names)
+sf_failpoint (const char *name)
 {
-  g_autoptr (GDir) d = g_dir_open (dir, 0, NULL);
-  if (!d)
-    return;
-  const char *entry;
-  while ((entry = g_dir_read_name (d)))
-    for (const char *const *n = names; *n; n++)
-      {
-        gsize ln = strlen (*n);
-        /* ".NAME." followed by the six characters that g_mkstemp fills in */
-        if (entry[0] != '.' || strncmp (entry + 1, *n, ln) != 0 || entry[1 + ln] != '.'
-            || strlen (entry + 2 + ln) != 6)
-          continue;
-        gboolean tmpl_chars = TRUE;
-        for (const char *c = entry + 2 + ln; *c; c++)
-          tmpl_chars = tmpl_chars && g_ascii_isalnum (*c);
-        if (tmpl_chars)
-          {
-            g_autofree char *p = g_build_filename (dir, entry, NULL);
-            g_unlink (p);
-          }
-      }
+  const char *fp = g_getenv ("SF_FAILPOINT");
+  if (fp && strcmp (fp, name) == 0)
+    raise (SIGKILL);
 }

@@ -6,7 +6,8 @@
  * written under a temporary name in its final folder and renamed into place
  * only when complete, so a reader never sees a half-written result).  The
  * temporary name of FOLDER/NAME is FOLDER/.NAME.XXXXXX (hidden); one left
- * behind by a killed process is removed by sf_atomic_file_remove_stale().
+ * behind by a killed process in a run's output folder is removed by the next
+ * run into it (sf-outdir.c).  And failpoints for the interrupted-run tests.
  */
 #pragma once
 
@@ -45,8 +46,11 @@ gboolean sf_atomic_file_commit (SfAtomicFile *af, GError **error);
 gboolean sf_atomic_file_commit_all (SfAtomicFile **afs, guint n, GError **error);
 /* Closes and removes the temporary file; frees af.  NULL is fine. */
 void sf_atomic_file_abort (SfAtomicFile *af);
-/* Removes the temporary files of `names` (NULL-terminated) that a killed
- * process left in dir (.NAME.XXXXXX).  Errors are ignored. */
-void sf_atomic_file_remove_stale (const char *dir, const char *const *names);
+
+/* A failpoint for the tests of interrupted runs: when the environment
+ * variable SF_FAILPOINT equals `name`, the process kills itself there
+ * (SIGKILL), as a power cut or `kill -9` would.  Nothing happens otherwise.
+ * The names are listed in DEVELOPERS.md. */
+void sf_failpoint (const char *name);
 
 G_END_DECLS

@@ -180,9 +180,12 @@ typedef struct {
                                when it becomes non-zero the run stops within about a
                                thousand events and fails with SF_MODEL_ERROR_INTERRUPTED,
                                writing nothing (the previous outputs stay as they were) */
+  gboolean charts;          /* also draw daily.png, usage.png and schedule.png into out_dir
+                               (sf_chart_run_outputs); a chart that cannot be drawn is a
+                               notice, not a failure */
 } SfRunOptions;
 
-#define SF_RUN_OPTIONS_INIT { NULL, FALSE, -1, 0, FALSE, FALSE, FALSE, -1, -1, 0, NULL }
+#define SF_RUN_OPTIONS_INIT { NULL, FALSE, -1, 0, FALSE, FALSE, FALSE, -1, -1, 0, NULL, FALSE }
 
 typedef struct {
   char *name;               /* "dz01", ... */
@@ -215,26 +218,34 @@ typedef struct {
   guint pushes;
   guint64 events;
   GArray *dozers;           /* SfDozerResult, owned */
+  gboolean charts_drawn;    /* SfRunOptions.charts asked for and all three drawn */
+  char *notice;             /* NULL, or lines for the user about the output folder (a chart
+                               not drawn, entries of the earlier folder kept aside); owned */
 } SfRunSummary;
 
 void sf_run_summary_clear (SfRunSummary *s);
 
 /* Runs the scenario once: every dozer of the fleet works the strip push by
- * push through simulated time.  Writes summary.json, schedule.csv, daily.csv
- * and events.log into opt->out_dir (as a set, under temporary names renamed
- * into place only when all four are on disk: a killed run leaves the
- * previous complete files or the new ones), and fills *sum.  Fails when the
- * scenario cannot be laid out, the output folder cannot be written or holds
- * another scenario's outputs (unless overwrite), or opt->cancel was set
- * (SF_MODEL_ERROR_INTERRUPTED, nothing written).  A run that stops short of
- * the end (horizon, no progress, event limit) succeeds with
- * sum->complete FALSE and the reason in sum->end_reason. */
+ * push through simulated time, and fills *sum.  With opt->out_dir it writes
+ * summary.json, schedule.csv, daily.csv and events.log (and the charts when
+ * opt->charts) as one set: all into a private staging folder, which then
+ * replaces the output folder in one step, keeping the user's own files in it
+ * (docs/robustness.md) — a run killed at any moment leaves the previous
+ * complete set or the new one.  Fails when the scenario cannot be laid out,
+ * the output folder cannot be written or holds another scenario's outputs
+ * (unless overwrite), or opt->cancel was set (SF_MODEL_ERROR_INTERRUPTED,
+ * nothing written).  A run that stops short of the end (horizon, no
+ * progress, event limit) succeeds with sum->complete FALSE and the reason in
+ * sum->end_reason. */
 gboolean sf_run (const SfScenario *sc, const SfRunOptions *opt, SfRunSummary *sum,
                  GError **error);
 
 /* Runs replications 0 .. n-1 of the scenario (opt->replication is ignored)
  * on up to n_threads threads (GThreadPool) and fills sums[0 .. n-1] in
- * replication order; only replication 0 writes output files (opt->out_dir).
+ * replication order.  The output set (opt->out_dir, committed as in sf_run
+ * once every replication is done) holds replication 0's files and, for
+ * n > 1, replications.csv with one row per replication; the notice goes to
+ * sums[0].
  * Each replication draws from its own random streams, so the results do not
  * depend on the number of threads.  On failure returns FALSE with the first
  * error (in replication order); sums are then all cleared. */

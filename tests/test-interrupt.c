@@ -4,16 +4,24 @@
  * whole (docs/robustness.md).
  *
  * Starts the built program (env SF_CLI) on the invented demo scenario into a
- * folder that already holds a complete earlier run and
+ * folder that already holds a complete earlier run and files of the user's
+ * own (a file and a sub-folder), and
  *   - kills it with SIGKILL at several moments, from 50 ms to just before the
  *     end of a run (timed on this machine), and proves after each kill that
  *     the folder holds one complete set of outputs from one run — the earlier
- *     one or the new one — by parsing every file;
+ *     one or the new one — by parsing every file, and that the user's files
+ *     are whole;
+ *   - kills it at each step of the commit that swaps the new set in (the
+ *     failpoints of sim/sf-outdir.c, env SF_FAILPOINT): the earlier set
+ *     before the swap, the new one from the swap on, the user's files kept,
+ *     and the next run clears what the killed one left;
  *   - stops it with SIGINT and with SIGTERM: exit 1, the message, the earlier
  *     files byte for byte and no temporary file left;
  *   - lets it run out of room (a file-size limit, RLIMIT_FSIZE, stands in for
  *     a full disk, whoever runs the test): exit 1, a message naming the
  *     file, the earlier files untouched.
+ * After every run that finishes, the output folder holds the outputs and the
+ * user's files only, and no staging folder is left beside it.
  * The reference for "complete and consistent" is the output format
  * (docs/output-formats.md) and counting: every push of a run is one "push"
  * line of its events.log, and its summary, daily.csv and schedule.csv count
@@ -72,9 +80,11 @@ child_setup (gpointer data)
 }
 
 /* Starts `stripfleet run -q --no-charts --seed SEED --out OUT DEMO`; stderr
- * goes to *err_fd when err_fd is not NULL, else to /dev/null. */
+ * goes to *err_fd when err_fd is not NULL, else to /dev/null.  failpoint:
+ * NULL, or the failpoint where the program kills itself. */
 static GPid
-start_run (const Fixture *f, gint64 seed, const ChildSetup *cs, int *err_fd)
+start_run_at (const Fixture *f, gint64 seed, const ChildSetup *cs, int *err_fd,
+              const char *failpoint)
 {
   g_autofree char *seed_s = g_strdup_printf ("%" G_GINT64_FORMAT, seed);
   const char *cli = g_getenv ("SF_CLI");
@@ -87,10 +97,19 @@ start_run (const Fixture *f, gint64 seed, const ChildSetup *cs, int *err_fd)
   GSpawnFlags flags = G_SPAWN_DO_NOT_REAP_CHILD | G_SPAWN_STDOUT_TO_DEV_NULL;
   if (!err_fd)
     flags |= G_SPAWN_STDERR_TO_DEV_NULL;
-  if (!g_spawn_async_with_pipes (NULL, (char **) argv, NULL, flags, child_setup, (gpointer) cs,
+  g_auto (GStrv) env = g_get_environ ();
+  env = failpoint ? g_environ_setenv (env, "SF_FAILPOINT", failpoint, TRUE)
+                  : g_environ_unsetenv (env, "SF_FAILPOINT");
+  if (!g_spawn_async_with_pipes (NULL, (char **) argv, env, flags, child_setup, (gpointer) cs,
                                  &pid, NULL, NULL, err_fd, &err))
     fail_msg ("cannot start %s: %s", cli, err->message);
   return pid;
+}
+
+static GPid
+start_run (const Fixture *f, gint64 seed, const ChildSetup *cs, int *err_fd)
+{
+  return start_run_at (f, seed, cs, err_fd, NULL);
 }
 
 /* Waits for the child; its exit code, or -(signal) when a signal ended it. */
@@ -218,58 +237,116 @@ check_complete_set (const Fixture *f)
   return seed;
 }
 
-/* Names in the folder other than the four outputs (temporary files). */
+/* ---- the user's own files and what killed runs leave ------------------------ */
+
+static const char NOTES[] = "planner's notes: block 12 re-surveyed\n";
+
+/* A file and a sub-folder of the user's in the output folder. */
+static void
+put_user_files (const Fixture *f)
+{
+  g_autofree char *notes = g_build_filename (f->out, "notes.txt", NULL);
+  g_autofree char *sub = g_build_filename (f->out, "mine", NULL);
+  g_autofree char *inner = g_build_filename (sub, "sketch.txt", NULL);
+  assert_true (g_file_set_contents (notes, NOTES, -1, NULL));
+  assert_int_equal (g_mkdir_with_parents (sub, 0755), 0);
+  assert_true (g_file_set_contents (inner, NOTES, -1, NULL));
+}
+
+static gboolean
+file_is (const char *path, const char *want)
+{
+  g_autofree char *text = NULL;
+  return g_file_get_contents (path, &text, NULL, NULL) && strcmp (text, want) == 0;
+}
+
+/* Staging folders (.out.staging-XXXXXX) beside the output folder. */
+static GPtrArray *
+staging_folders (const Fixture *f)
+{
+  GPtrArray *found = g_ptr_array_new_with_free_func (g_free);
+  g_autoptr (GDir) d = g_dir_open (f->dir, 0, NULL);
+  const char *e;
+  while (d && (e = g_dir_read_name (d)))
+    if (g_str_has_prefix (e, ".out.staging-"))
+      g_ptr_array_add (found, g_build_filename (f->dir, e, NULL));
+  return found;
+}
+
+/* The user's file and sub-folder are whole: in the output folder, or — only
+ * when `allow_aside` (a kill between the swap and the end of the commit) —
+ * in a staging folder that the next run puts back. */
+static void
+check_user_files (const Fixture *f, gboolean allow_aside)
+{
+  g_autofree char *notes = g_build_filename (f->out, "notes.txt", NULL);
+  if (!file_is (notes, NOTES))
+    fail_msg ("%s is missing or changed", notes);
+  g_autofree char *inner = g_build_filename (f->out, "mine", "sketch.txt", NULL);
+  if (file_is (inner, NOTES))
+    return;
+  g_autoptr (GPtrArray) st = staging_folders (f);
+  for (guint i = 0; allow_aside && i < st->len; i++)
+    {
+      g_autofree char *aside = g_build_filename (st->pdata[i], "mine", "sketch.txt", NULL);
+      if (file_is (aside, NOTES))
+        return;
+    }
+  fail_msg ("%s is missing or changed", inner);
+}
+
+/* Names in the output folder other than the four outputs and the user's
+ * two. */
 static guint
-count_other_files (const Fixture *f, gboolean *all_hidden)
+count_other_files (const Fixture *f)
 {
   g_autoptr (GDir) d = g_dir_open (f->out, 0, NULL);
   assert_non_null (d);
   guint n = 0;
-  *all_hidden = TRUE;
   const char *e;
   while ((e = g_dir_read_name (d)))
     {
-      gboolean known = FALSE;
+      gboolean known = strcmp (e, "notes.txt") == 0 || strcmp (e, "mine") == 0;
       for (gsize i = 0; i < G_N_ELEMENTS (OUT_FILES); i++)
         known |= strcmp (e, OUT_FILES[i]) == 0;
       if (!known)
         {
+          print_message ("# unexpected %s in the output folder\n", e);
           n++;
-          *all_hidden = *all_hidden && e[0] == '.';
         }
     }
   return n;
 }
 
-/* Removes hidden files (temporary files of killed runs) from the folder. */
+/* After a run that finished: the user's files in place, nothing else in the
+ * output folder, no staging folder beside it. */
 static void
-remove_hidden (const Fixture *f)
+check_clean (const Fixture *f)
 {
-  g_autoptr (GDir) d = g_dir_open (f->out, 0, NULL);
-  const char *e;
-  while (d && (e = g_dir_read_name (d)))
-    if (e[0] == '.')
-      {
-        g_autofree char *p = g_build_filename (f->out, e, NULL);
-        g_unlink (p);
-      }
+  check_user_files (f, FALSE);
+  assert_int_equal (count_other_files (f), 0);
+  g_autoptr (GPtrArray) st = staging_folders (f);
+  if (st->len)
+    fail_msg ("%s was left behind", (const char *) st->pdata[0]);
 }
 
-/* Waits until the run has opened its event log (a hidden temporary file
- * .events.log.XXXXXX appears): the simulation is under way, with a second
- * or more to go on the demo.  FALSE when the child ended first. */
+/* Waits until the run has opened its event log in its staging folder: the
+ * simulation is under way, with a second or more to go on the demo.  FALSE
+ * when the child ended first. */
 static gboolean
 wait_for_run_loop (const Fixture *f, GPid pid)
 {
   for (int i = 0; i < 60000; i++)
     {
-      g_autoptr (GDir) d = g_dir_open (f->out, 0, NULL);
-      const char *e;
-      while (d && (e = g_dir_read_name (d)))
-        if (g_str_has_prefix (e, ".events.log."))
-          return TRUE;
-      int st;
-      if (waitpid (pid, &st, WNOHANG) == pid)
+      g_autoptr (GPtrArray) st = staging_folders (f);
+      for (guint k = 0; k < st->len; k++)
+        {
+          g_autofree char *log = g_build_filename (st->pdata[k], "events.log", NULL);
+          if (g_file_test (log, G_FILE_TEST_EXISTS))
+            return TRUE;
+        }
+      int status;
+      if (waitpid (pid, &status, WNOHANG) == pid)
         return FALSE;
       g_usleep (2000);
     }
@@ -307,7 +384,10 @@ setup (void **state)
   int rc = wait_child (pid);
   f->run_us = g_get_monotonic_time () - t0;
   *state = f;
-  return rc == SF_EXIT_OK ? 0 : -1;
+  if (rc != SF_EXIT_OK)
+    return -1;
+  put_user_files (f);
+  return 0;
 }
 
 
@@ -330,14 +410,14 @@ test_earlier_run_complete (void **state)
 {
   Fixture *f = *state;
   assert_int_equal (check_complete_set (f), f->seed);
-  gboolean hidden;
-  assert_int_equal (count_other_files (f, &hidden), 0);
+  check_clean (f);
 }
 
 /* SIGKILL at fixed moments and at shares of a whole run (the last ones
  * close to the final writing): each time one complete set, the earlier
- * run's or the new one's, and only hidden temporary files besides; then a
- * run left to finish clears what the killed ones left behind. */
+ * run's or the new one's, the user's files whole, and nothing else in the
+ * output folder; then a run left to finish clears what the killed ones left
+ * behind. */
 static void
 test_sigkill_anytime (void **state)
 {
@@ -368,9 +448,8 @@ test_sigkill_anytime (void **state)
       /* a run that finished before the kill exits 0 and leaves its set */
       assert_true (rc == -SIGKILL || (rc == SF_EXIT_OK && got == seed));
       f->seed = got;
-      gboolean hidden;
-      count_other_files (f, &hidden);
-      assert_true (hidden);
+      check_user_files (f, TRUE);
+      assert_int_equal (count_other_files (f), 0);
     }
   print_message ("# %u kills left the earlier set, %u a new one (run %.2f s)\n", n_old, n_new,
                  f->run_us / 1e6);
@@ -379,8 +458,53 @@ test_sigkill_anytime (void **state)
   assert_int_equal (wait_child (pid), SF_EXIT_OK);
   f->seed = check_complete_set (f);
   assert_int_equal (f->seed, 7);
-  gboolean hidden;
-  assert_int_equal (count_other_files (f, &hidden), 0);
+  check_clean (f);
+}
+
+/* SIGKILL at each step of the commit (sim/sf-outdir.c failpoints): before
+ * the swap the earlier set stays, from the swap on the new set is there;
+ * the user's files are never lost, and the next run clears what the killed
+ * one left (a staging folder, the old folder with the user's sub-folder). */
+static void
+test_sigkill_in_commit (void **state)
+{
+  Fixture *f = *state;
+  static const struct {
+    const char *failpoint;
+    gboolean new_set;
+  } steps[] = {
+    { "outdir-synced", FALSE },  /* every staged file on disk */
+    { "outdir-linked", FALSE },  /* the user's files linked into the staging folder */
+    { "outdir-swapped", TRUE },  /* the folders swapped, the old one not emptied */
+    { "outdir-drain-first", TRUE }, /* the old folder partly emptied */
+  };
+  for (gsize i = 0; i < G_N_ELEMENTS (steps); i++)
+    {
+      gint64 seed = 400 + (gint64) i;
+      ChildSetup cs = { FALSE };
+      GPid pid = start_run_at (f, seed, &cs, NULL, steps[i].failpoint);
+      int rc = wait_child (pid);
+      if (rc != -SIGKILL)
+        fail_msg ("%s: the run ended with %d, not at the failpoint", steps[i].failpoint, rc);
+      gint64 got = check_complete_set (f);
+      gint64 want = steps[i].new_set ? seed : f->seed;
+      if (got != want)
+        fail_msg ("killed at %s: the folder holds seed %" G_GINT64_FORMAT ", expected %"
+                  G_GINT64_FORMAT, steps[i].failpoint, got, want);
+      f->seed = got;
+      check_user_files (f, TRUE);
+      assert_int_equal (count_other_files (f), 0);
+      g_autoptr (GPtrArray) st = staging_folders (f);
+      assert_int_equal (st->len, 1); /* the killed run's, to clear */
+      print_message ("# killed at %-19s -> %s set\n", steps[i].failpoint,
+                     steps[i].new_set ? "new" : "earlier");
+      /* the next run clears it (and finishes) */
+      pid = start_run (f, 500 + (gint64) i, &cs, NULL);
+      assert_int_equal (wait_child (pid), SF_EXIT_OK);
+      f->seed = check_complete_set (f);
+      assert_int_equal (f->seed, 500 + (gint64) i);
+      check_clean (f);
+    }
 }
 
 /* SIGINT and SIGTERM stop a run cleanly: exit 1, the message, nothing
@@ -394,7 +518,6 @@ test_sigint_sigterm (void **state)
   const int sigs[] = { SIGINT, SIGTERM };
   for (gsize i = 0; i < G_N_ELEMENTS (sigs); i++)
     {
-      remove_hidden (f);
       g_autofree char *before = snapshot (f);
       int err_fd = -1;
       ChildSetup cs = { FALSE };
@@ -410,8 +533,7 @@ test_sigint_sigterm (void **state)
         strstr (err, "stripfleet run: interrupted; previous outputs (if any) left as they were"));
       g_autofree char *after = snapshot (f);
       assert_string_equal (before, after);
-      gboolean hidden;
-      assert_int_equal (count_other_files (f, &hidden), 0);
+      check_clean (f);
     }
 }
 
@@ -434,8 +556,7 @@ test_out_of_room (void **state)
   assert_non_null (strstr (err, f->out));
   g_autofree char *after = snapshot (f);
   assert_string_equal (before, after);
-  gboolean hidden;
-  assert_int_equal (count_other_files (f, &hidden), 0);
+  check_clean (f);
 }
 
 int
@@ -444,6 +565,7 @@ main (void)
   const struct CMUnitTest tests[] = {
     cmocka_unit_test (test_earlier_run_complete),
     cmocka_unit_test (test_sigkill_anytime),
+    cmocka_unit_test (test_sigkill_in_commit),
     cmocka_unit_test (test_sigint_sigterm),
     cmocka_unit_test (test_out_of_room),
   };

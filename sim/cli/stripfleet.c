@@ -558,6 +558,7 @@ verb_run (int argc, char **argv)
   o.progress = !quiet;
   o.no_randomness = no_random;
   o.cancel = &interrupted;
+  o.charts = out && !no_charts;
   if (replications < 1 || replications > 10000 || threads < 0)
     {
       g_printerr ("stripfleet run: --replications: expected 1 to 10000, --threads: 0 or more\n");
@@ -573,14 +574,7 @@ verb_run (int argc, char **argv)
                                           sums, &err);
   if (!ran && g_error_matches (err, SF_MODEL_ERROR, SF_MODEL_ERROR_INTERRUPTED))
     {
-      if (replications == 1 || !out)
-        g_printerr ("stripfleet run: interrupted; previous outputs (if any) left as they were\n");
-      else
-        /* replication 0 writes its files as soon as it is done, while the
-         * others may still be running */
-        g_printerr ("stripfleet run: interrupted; the outputs in %s are a complete set: "
-                    "replication 0's if it had finished, else the previous ones (if any)\n",
-                    out);
+      g_printerr ("stripfleet run: interrupted; previous outputs (if any) left as they were\n");
       return SF_EXIT_RUNTIME;
     }
   if (!ran)
@@ -591,23 +585,14 @@ verb_run (int argc, char **argv)
                : SF_EXIT_RUNTIME;
     }
   print_run_summary (sc, &sums[0], out);
-  if (out && !no_charts)
+  if (sums[0].charts_drawn)
+    printf ("  charts: daily.png, usage.png, schedule.png\n");
+  if (sums[0].notice)
     {
-      /* drawn from the files just written; a failure is only a warning */
-      g_autoptr (GError) cerr = NULL;
-      if (sf_chart_run_outputs (out, &cerr))
-        printf ("  charts: daily.png, usage.png, schedule.png\n");
-      else
-        {
-          g_printerr ("stripfleet run: warning: charts not drawn: %s\n", cerr->message);
-          static const char *const pngs[] = { "daily.png", "usage.png", "schedule.png" };
-          for (gsize i = 0; i < G_N_ELEMENTS (pngs); i++)
-            {
-              g_autofree char *p = g_build_filename (out, pngs[i], NULL);
-              if (g_file_test (p, G_FILE_TEST_EXISTS))
-                g_printerr ("stripfleet run: warning: %s may be from an earlier run\n", p);
-            }
-        }
+      /* one warning line per line of the notice */
+      g_auto (GStrv) lines = g_strsplit (sums[0].notice, "\n", -1);
+      for (char **l = lines; *l; l++)
+        g_printerr ("stripfleet run: warning: %s\n", *l);
     }
   if (replications > 1)
     print_spread (sums, (guint) replications);
