@@ -160,6 +160,7 @@ typedef struct {
   gint64 progress_next_us;
   guint64 events;
   guint64 pushes;
+  guint crew_operators[SF_MAX_CREWS]; /* operators each crew mans in this run */
 } World;
 
 const char *
@@ -703,7 +704,7 @@ begin_shift (World *w, gint64 day, guint shift, gboolean at_start)
 {
   const SfRoster *r = &w->sc->roster;
   w->crew = sf_roster_crew_on (r, day, shift);
-  guint operators = w->crew == SF_NO_CREW ? 0 : r->crews[w->crew].operators;
+  guint operators = w->crew == SF_NO_CREW ? 0 : w->crew_operators[w->crew];
   double skill = w->crew == SF_NO_CREW ? 1.0 : r->crews[w->crew].skill;
   w->shift_factor = skill * (r->shifts[shift].night ? r->night_factor : 1.0);
   SfTime shift_t0 = sf_roster_shift_start (r, &w->cal, day, shift);
@@ -902,6 +903,19 @@ world_new (const SfScenario *sc, const SfRunOptions *opt, GError **error)
         g_array_append_val (order, e->class_index);
     }
   w->n_dz = opt->n_dozers > 0 ? (guint) opt->n_dozers : order->len;
+  /* Operators: the scenario's crews; a fleet resized with n_dozers keeps
+   * each crew's share of machines manned (rounded up, at most the fleet);
+   * opt->operators sets every crew's number outright. */
+  for (guint c = 0; c < sc->roster.n_crews; c++)
+    {
+      guint op = sc->roster.crews[c].operators;
+      if (opt->operators > 0)
+        op = (guint) opt->operators;
+      else if (opt->n_dozers > 0 && order->len > 0)
+        op = (guint) MIN ((guint64) w->n_dz,
+                          ((guint64) op * w->n_dz + order->len - 1) / order->len);
+      w->crew_operators[c] = op;
+    }
   w->dz = g_new0 (Dozer, w->n_dz);
   w->failures_on = !opt->no_randomness;
   for (guint i = 0; i < w->n_dz; i++)

@@ -168,7 +168,9 @@ typedef struct {
   gboolean overwrite;       /* replace outputs that another scenario left in out_dir */
   gint64 seed;              /* < 0: the scenario's seed */
   int n_dozers;             /* <= 0: the scenario's fleet; else this many, classes taken in
-                               fleet order and repeated */
+                               fleet order and repeated; each crew's operators are scaled
+                               with the fleet (ceil(operators x n_dozers / fleet size), at
+                               most n_dozers) unless `operators` is set */
   gboolean progress;        /* a progress line on stderr when it is a terminal */
   gboolean no_randomness;   /* no breakdowns and no weather (what-if runs, tests) */
   gboolean constant_lanes;  /* test lanes: the ground is put back after every push, so every
@@ -183,9 +185,11 @@ typedef struct {
   gboolean charts;          /* also draw daily.png, usage.png and schedule.png into out_dir
                                (sf_chart_run_outputs); a chart that cannot be drawn is a
                                notice, not a failure */
+  int operators;            /* > 0: operators in every crew (dozers beyond stand unmanned);
+                               <= 0: the scenario's, scaled with n_dozers */
 } SfRunOptions;
 
-#define SF_RUN_OPTIONS_INIT { NULL, FALSE, -1, 0, FALSE, FALSE, FALSE, -1, -1, 0, NULL, FALSE }
+#define SF_RUN_OPTIONS_INIT { NULL, FALSE, -1, 0, FALSE, FALSE, FALSE, -1, -1, 0, NULL, FALSE, 0 }
 
 typedef struct {
   char *name;               /* "dz01", ... */

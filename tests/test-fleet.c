@@ -493,6 +493,44 @@ test_side_by_side_pairs (void **state)
   assert_true (wait[1] < wait[0]);
 }
 
+/* Manning when the fleet is resized: the demo's crews have 5 operators for a
+ * fleet of 6, so with 12 dozers each crew mans ceil(5 x 12 / 6) = 10 and
+ * dz11, dz12 stand unmanned the whole run, while dz10 works; with
+ * operators = 3 set outright dz04 .. dz12 never work (analytic: the rule
+ * stated in stripfleet.h, SfRunOptions.n_dozers and .operators). */
+static void
+test_manning_scales_with_fleet (void **state)
+{
+  (void) state;
+  g_autoptr (SfScenario) sc = demo ();
+  assert_int_equal (sc->roster.crews[0].operators, 5);
+  static const struct {
+    int operators;
+    guint manned;
+  } cases[] = { { 0, 10 }, { 3, 3 } };
+  for (gsize c = 0; c < G_N_ELEMENTS (cases); c++)
+    {
+      SfRunOptions o = SF_RUN_OPTIONS_INIT;
+      o.n_dozers = 12;
+      o.operators = cases[c].operators;
+      o.only_block = 0;
+      o.no_randomness = TRUE;
+      SfRunSummary s;
+      g_autoptr (GError) err = NULL;
+      assert_true (sf_run (sc, &o, &s, &err));
+      assert_int_equal (s.dozers->len, 12);
+      for (guint i = 0; i < 12; i++)
+        {
+          const SfDozerResult *d = &g_array_index (s.dozers, SfDozerResult, i);
+          if (i >= cases[c].manned)
+            assert_int_equal (d->use_ms[SF_USE_UNMANNED], s.calendar_ms);
+          else
+            assert_true (d->use_ms[SF_USE_UNMANNED] < s.calendar_ms);
+        }
+      sf_run_summary_clear (&s);
+    }
+}
+
 /* Replications draw from their own streams: the results do not depend on the
  * number of threads (GThreadPool), and replications differ from each other
  * (analytic: independent streams). */
@@ -554,6 +592,7 @@ main (void)
     cmocka_unit_test (test_fleet_size_returns),
     cmocka_unit_test (test_replications_threads),
     cmocka_unit_test (test_side_by_side_pairs),
+    cmocka_unit_test (test_manning_scales_with_fleet),
   };
   /* the group setup runs the full demo once; the tests that need it read it */
   return cmocka_run_group_tests_name ("fleet", tests, setup_demo, teardown_demo);

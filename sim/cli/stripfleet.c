@@ -509,7 +509,7 @@ verb_run (int argc, char **argv)
 {
   static char *out = NULL;
   static gint64 seed = -1;
-  static int dozers = 0;
+  static int dozers = 0, operators = 0;
   static gboolean overwrite = FALSE, no_random = FALSE, quiet = FALSE;
   static gboolean no_charts = FALSE;
   static int replications = 1, threads = 0;
@@ -517,7 +517,10 @@ verb_run (int argc, char **argv)
     { "out", 'o', 0, G_OPTION_ARG_FILENAME, &out, "Folder for the output files", "DIR" },
     { "seed", 0, 0, G_OPTION_ARG_INT64, &seed, "Random seed (default: the scenario's)", "N" },
     { "dozers", 'n', 0, G_OPTION_ARG_INT, &dozers,
-      "Number of dozers (classes taken in fleet order; default: the scenario's fleet)", "N" },
+      "Number of dozers (classes taken in fleet order; default: the scenario's fleet); the crews' "
+      "operators are scaled with it", "N" },
+    { "operators", 0, 0, G_OPTION_ARG_INT, &operators,
+      "Operators in every crew (default: the scenario's, scaled with --dozers)", "N" },
     { "overwrite", 0, 0, G_OPTION_ARG_NONE, &overwrite,
       "Replace another scenario's outputs in DIR", NULL },
     { "no-randomness", 0, 0, G_OPTION_ARG_NONE, &no_random, "No breakdowns and no weather", NULL },
@@ -546,6 +549,11 @@ verb_run (int argc, char **argv)
       g_printerr ("stripfleet run: --dozers: expected a positive number, found %d\n", dozers);
       return SF_EXIT_USAGE;
     }
+  if (operators < 0 || operators > 500)
+    {
+      g_printerr ("stripfleet run: --operators: expected 1 to 500, found %d\n", operators);
+      return SF_EXIT_USAGE;
+    }
   int rc = SF_EXIT_OK;
   g_autoptr (SfScenario) sc = load_or_report (argv[1], &rc);
   if (!sc)
@@ -555,6 +563,7 @@ verb_run (int argc, char **argv)
   o.overwrite = overwrite;
   o.seed = seed;
   o.n_dozers = dozers;
+  o.operators = operators;
   o.progress = !quiet;
   o.no_randomness = no_random;
   o.cancel = &interrupted;
