@@ -305,4 +305,99 @@ gboolean sf_study_chart_lane (const SfScenario *sc, guint block, guint lane, gui
  * planning-estimate caution; the same files give byte-identical charts. */
 gboolean sf_chart_run_outputs (const char *out_dir, GError **error);
 
+/* ---- replay: a finished run read back from its events.log, for display ------ */
+
+/* A run's events.log (docs/output-formats.md) held in memory and indexed by
+ * time, so that the state of the fleet at any moment can be asked for: a
+ * replay viewer's data.  Immutable once loaded; free with sf_replay_free. */
+typedef struct _SfReplay SfReplay;
+
+/* Reads `events_path` strictly: the header must carry the format tag
+ * "stripfleet-run-1" and the name of scenario `sc` (the scenario the run was
+ * made from); every line must be as sf_run() writes it, times must not go
+ * back, and dozer, block, lane, shift and crew indices must exist in `sc`
+ * with a fleet of `n_dozers` (0: the scenario's fleet; give the number the
+ * run was made with `--dozers`).  The first problem fails the load with an
+ * SF_SCENARIO_ERROR naming the file and line, the field and what was
+ * expected (a G_FILE_ERROR when the file cannot be read).  Memory grows with
+ * the log: about 50 bytes a line. */
+SfReplay *sf_replay_load (const char *events_path, const SfScenario *sc, guint n_dozers,
+                          GError **error);
+void sf_replay_free (SfReplay *rp);
+G_DEFINE_AUTOPTR_CLEANUP_FUNC (SfReplay, sf_replay_free)
+
+const char *sf_replay_get_scenario_name (const SfReplay *rp);
+/* The run's start as the header gives it (local time with its UTC offset);
+ * borrowed.  Times in the log are milliseconds after it. */
+GDateTime *sf_replay_get_start (const SfReplay *rp);
+guint64 sf_replay_get_seed (const SfReplay *rp);
+gint64 sf_replay_get_end_ms (const SfReplay *rp);   /* time of the last line (0 when none) */
+guint sf_replay_get_n_events (const SfReplay *rp);  /* lines after the header */
+guint sf_replay_get_n_dozers (const SfReplay *rp);
+guint sf_replay_get_n_blocks (const SfReplay *rp);
+guint sf_replay_get_n_lanes (const SfReplay *rp);   /* per block */
+/* Smallest and largest x (m, along the section axis) of any push start or
+ * dump point in the log; 0, 0 when there is no push. */
+void sf_replay_get_x_range (const SfReplay *rp, double *x_lo_m, double *x_hi_m);
+
+typedef struct {
+  char name[12];            /* "dz01", ... */
+  SfUse use;                /* time-usage category at t */
+  int block, lane;          /* lane held at t, or -1, -1 */
+  /* Blade position along the section axis, m: an ESTIMATE FOR DISPLAY ONLY.
+   * While a push is under way it is interpolated in time between the push's
+   * start x and its dump x over the interval from the dozer's previous log
+   * line to the push line (which the log writes when the cycle ends); the
+   * cycle's return leg and any speed changes are not in the log.  Otherwise
+   * the start x of its next push on the lane it holds, else the dump x of its
+   * last push there, else NAN (position unknown). */
+  double x_m;
+  gboolean pushing;         /* x_m is interpolated within a push */
+  guint pushes;             /* push lines so far */
+  guint failures;
+  double dumped_bcm;        /* its pushes' loose volume / (1 + swell), gross */
+  gint64 use_ms[SF_USE_N];  /* time in each category from 0 to t */
+} SfReplayDozer;
+
+typedef struct {
+  guint slices_done;        /* slice lines so far */
+  guint slices_total;       /* slice lines of this lane in the whole log */
+  gboolean done;            /* lane_done line seen */
+  double dumped_bcm;        /* pushes on this lane so far, gross */
+} SfReplayLane;
+
+/* The fleet at one moment, as the log tells it: every line with t_ms <= t
+ * applied.  Created for one replay by sf_replay_state_new; its arrays are
+ * owned by it. */
+typedef struct {
+  gint64 t_ms;
+  guint n_dozers, n_blocks, n_lanes;
+  SfReplayDozer *dozers;    /* n_dozers */
+  SfReplayLane *lanes;      /* n_blocks x n_lanes, [block * n_lanes + lane] */
+  gboolean *block_open;     /* n_blocks: workable (no blast line in the log, or blasted) */
+  guint pushes;             /* fleet totals so far */
+  double dumped_bcm;
+  guint slices_done, lanes_done;
+  int shift;                /* index of the shift within the day, -1 before the first */
+  int day;                  /* local day index of that shift (0 = the start's date), -1 */
+  const char *shift_name;   /* the scenario's names, borrowed from the replay; NULL for none */
+  const char *crew_name;    /* NULL: nobody rostered or no shift yet */
+  int operators;            /* manned this shift, -1 before the first */
+  gboolean wet_stop;        /* a wet-weather stop is on */
+  guint events;             /* log lines applied */
+  /*< private >*/
+  const SfReplay *replay;
+  gint64 wet_end_ms;
+} SfReplayState;
+
+SfReplayState *sf_replay_state_new (const SfReplay *rp);
+void sf_replay_state_free (SfReplayState *st);
+G_DEFINE_AUTOPTR_CLEANUP_FUNC (SfReplayState, sf_replay_state_free)
+
+/* Fills *st with the state at t_ms (clamped to 0 .. end).  Costs O(log n)
+ * plus at most a few hundred lines replayed from the nearest stored
+ * checkpoint, and amortised O(1) when t_ms moves forward from st's last
+ * time (forward playback).  st must come from sf_replay_state_new (rp). */
+void sf_replay_state_at (const SfReplay *rp, gint64 t_ms, SfReplayState *st);
+
 G_END_DECLS
