@@ -34,10 +34,11 @@
  * blocks repeat the scenario's pattern: copy k of block j becomes workable at
  * blast_h[j] + k * span, where span is the latest given blast time plus the
  * shortest gap between two distinct given blast times (0 when every block is
- * workable at the start).  --operators N (extra) sets every crew's operators,
- * so that a larger --dozers fleet is manned: the demo's crews have 5
- * operators, so with --dozers 20 only 5 dozers work on any shift and the
- * others stand unmanned (they still hold their memory).
+ * workable at the start).  --dozers N and --operators N are those of
+ * `stripfleet run` (SfRunOptions): a resized fleet keeps the scenario's share
+ * of manned machines (the demo's crews man 5 of 6, so with --dozers 20 each
+ * crew mans 17 and 3 stand unmanned, still holding their memory);
+ * --operators N mans N outright.
  *
  * Owns: the scenario (g_autoptr) and one SfRunSummary per repeat, cleared
  * after use.  The demo scenario is invented; the figures measure the code,
@@ -197,9 +198,6 @@ main (int argc, char **argv)
       g_printerr ("bench-run: %s\n", error->message);
       return 2;
     }
-  if (operators > 0)
-    for (guint c = 0; c < sc->roster.n_crews; c++)
-      sc->roster.crews[c].operators = (guint) operators;
   double hwm_load_mb = vm_hwm_mb ();
 
   SfRunOptions opt = SF_RUN_OPTIONS_INIT;
@@ -207,6 +205,7 @@ main (int argc, char **argv)
   opt.progress = FALSE;
   opt.seed = seed;
   opt.n_dozers = dozers;
+  opt.operators = operators;
 
   g_autofree double *wall_s = g_new (double, repeat);
   g_autofree double *run_cpu_s = g_new (double, repeat);
