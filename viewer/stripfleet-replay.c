@@ -197,7 +197,7 @@ main (int argc, char **argv)
     { "png", 'p', 0, G_OPTION_ARG_FILENAME, &png,
       "Draw the frame at --at into this PNG and exit (no window)", "FILE.png" },
     { "frames", 'f', 0, G_OPTION_ARG_INT, &frames, "Show this many frames, then exit", "N" },
-    { NULL },
+    G_OPTION_ENTRY_NULL,
   };
   g_autoptr (GOptionContext) ctx = g_option_context_new ("SCENARIO DIR");
   g_option_context_set_summary (
