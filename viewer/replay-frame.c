@@ -530,7 +530,10 @@ draw_status (cairo_t *cr, const SfReplay *rp, const SfReplayState *st, const Rep
       : st->crew_name ? fmt ("day %d, %s shift: crew %s, %d operators", st->day + 1,
                              st->shift_name, st->crew_name, st->operators)
                       : fmt ("day %d, %s shift: nobody rostered", st->day + 1, st->shift_name);
-  font (cr, 14, TRUE);
+  /* scenario names can be long: the line shrinks to fit the column */
+  double size = 14;
+  for (font (cr, size, TRUE); size > 9 && text_width (cr, shift) > W - 24 - COL_X; size -= 0.5)
+    font (cr, size - 0.5, TRUE);
   text_at (cr, COL_X, y, 0.0, 0.0, shift);
   y += 26;
   if (st->wet_stop)
