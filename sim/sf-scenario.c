@@ -1173,7 +1173,7 @@ read_generated (Reader *r, const cJSON *g, SfSectionParams *p)
 }
 
 /* highwall_toe_x_m and low_wall_edge_x_m of obj, within the section range
- * and in order. */
+ * and in order; and the optional coal_thickness_m. */
 static void
 read_toe_and_edge (Reader *r, const SfScenario *sc, const StripState *st, const cJSON *obj,
                    SfSectionSpec *spec)
@@ -1182,6 +1182,7 @@ read_toe_and_edge (Reader *r, const SfScenario *sc, const StripState *st, const 
                           : OO (-HUGE_VAL, HUGE_VAL, "m");
   gboolean toe_ok = req_number (r, obj, "highwall_toe_x_m", rg, &spec->highwall_toe_x_m);
   gboolean edge_ok = req_number (r, obj, "low_wall_edge_x_m", rg, &spec->low_wall_edge_x_m);
+  opt_number (r, obj, "coal_thickness_m", OC (0, 30, "m"), 0.0, &spec->coal_thickness_m);
   if (toe_ok && edge_ok && !(spec->low_wall_edge_x_m > spec->highwall_toe_x_m))
     {
       gsize mark = path_key (r, "low_wall_edge_x_m");
@@ -1273,9 +1274,10 @@ read_section (Reader *r, const SfScenario *sc, const StripState *st, const cJSON
               gboolean *block_ok)
 {
   static const char *const keys[] = { "block", "generated", "strings", "csv",
-                                      "highwall_toe_x_m", "low_wall_edge_x_m", NULL };
+                                      "highwall_toe_x_m", "low_wall_edge_x_m",
+                                      "coal_thickness_m", NULL };
   static const char *const string_keys[] = { "surface", "coal_roof", "highwall_toe_x_m",
-                                             "low_wall_edge_x_m", NULL };
+                                             "low_wall_edge_x_m", "coal_thickness_m", NULL };
   SfSectionSpec *spec = g_new0 (SfSectionSpec, 1);
   spec->source = g_strdup_printf ("%s:%s", r->label, r->path->str);
   *block_ok = FALSE;
@@ -1335,7 +1337,7 @@ read_section (Reader *r, const SfScenario *sc, const StripState *st, const cJSON
   else
     {
       static const char *const k_csv[] = { "block", "csv", "highwall_toe_x_m",
-                                           "low_wall_edge_x_m", NULL };
+                                           "low_wall_edge_x_m", "coal_thickness_m", NULL };
       check_keys (r, obj, k_csv);
       const char *rel = read_string (r, obj, "csv", TRUE, TRUE, NULL);
       read_toe_and_edge (r, sc, st, obj, spec);

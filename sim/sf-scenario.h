@@ -132,6 +132,8 @@ typedef struct {
   GArray *coal_roof;            /* SfPoint, x strictly increasing; when STRINGS */
   double highwall_toe_x_m;      /* x of the highwall toe on the coal roof; when STRINGS */
   double low_wall_edge_x_m;     /* x of the far edge of this strip's coal; when STRINGS */
+  double coal_thickness_m;      /* STRINGS: the seam's thickness if given, else 0 (then taken
+                                   from the nearest given sections along strike) */
   char *source;                 /* "file.json:sections[3]" or CSV path, for messages */
 } SfSectionSpec;
 

@@ -228,6 +228,7 @@ sf_section_generate (const SfSectionParams *p, const SfMaterial *m, double x0_m,
 typedef struct {
   double *surface, *base, *roof;
   double x_toe, x_edge, bank, cast, coal_m;
+  double coal_m_est;  /* coal_m from the neighbours along strike when not given */
 } Sampled;
 
 static void
@@ -270,6 +271,7 @@ sample_spec (const SfScenario *sc, const SfSectionSpec *spec, Sampled *out, GErr
                               spec->coal_roof->len);
   out->x_toe = spec->highwall_toe_x_m;
   out->x_edge = spec->low_wall_edge_x_m;
+  out->coal_m = spec->coal_thickness_m;
   for (guint i = 0; i < n; i++)
     {
       double x = st->x_min_m + (i + 0.5) * st->cell_m;
@@ -306,6 +308,37 @@ sf_section_set_new (const SfScenario *sc, GError **error)
         sf_section_set_free (set);
         return NULL;
       }
+  /* A surveyed section without a seam thickness takes it from the nearest
+   * given sections along strike that have one: linear in the block index
+   * between two, the nearest one's beyond the last (sections are sorted by
+   * block).  With none at all it stays unknown (0). */
+  for (guint k = 0; k < set->n; k++)
+    {
+      if (set->sampled[k].coal_m > 0)
+        continue;
+      int p = (int) k - 1, q = (int) k + 1;
+      while (p >= 0 && !(set->sampled[p].coal_m > 0))
+        p--;
+      while (q < (int) set->n && !(set->sampled[q].coal_m > 0))
+        q++;
+      /* only given thicknesses count: fill from the specs, not from sections
+       * filled in this loop */
+      const SfSectionSpec *sk = g_ptr_array_index (sc->sections, k);
+      if (p >= 0 && q < (int) set->n)
+        {
+          const SfSectionSpec *sp = g_ptr_array_index (sc->sections, p);
+          const SfSectionSpec *sq = g_ptr_array_index (sc->sections, q);
+          double w = (double) (sk->block - sp->block) / (double) (sq->block - sp->block);
+          set->sampled[k].coal_m_est = (1 - w) * set->sampled[p].coal_m + w * set->sampled[q].coal_m;
+        }
+      else if (p >= 0)
+        set->sampled[k].coal_m_est = set->sampled[p].coal_m;
+      else if (q < (int) set->n)
+        set->sampled[k].coal_m_est = set->sampled[q].coal_m;
+    }
+  for (guint k = 0; k < set->n; k++)
+    if (!(set->sampled[k].coal_m > 0))
+      set->sampled[k].coal_m = set->sampled[k].coal_m_est;
   return set;
 }
 

@@ -37,7 +37,7 @@ typedef struct {
   /* bank and loose section areas of the original overburden block, m2
    * (generated sections only; 0 for strings). */
   double bank_area_m2, cast_area_m2;
-  double coal_thickness_m;   /* generated sections; 0 when not known (strings) */
+  double coal_thickness_m;   /* seam thickness; 0 when no given section has one */
 } SfBlockSection;
 
 /* Builds the section of `block` (0-based).  Interpolates linearly between the

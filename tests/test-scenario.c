@@ -966,6 +966,7 @@ static const BadCase bad_cases[] = {
    * generated.overburden_m, and 637.76 - (-42.657) m is analytic (the
    * surface interpolated at the roof vertex x = 40.25 m) */
   { "102-csv-cover-too-high.json", INV, 1, "102-csv-cover-too-high.csv: surface stands 680.417 m above the coal roof at x = 40.25 m (surface z = 637.76 m, roof z = -42.657 m) (and at 1 more point); expected at most 300 m of cover" },
+  { "103-strings-coal-thickness.json", INV, 1, "sections[1].strings.coal_thickness_m: expected a number in (0, 30] m, found -2" },
 };
 
 /* One table row: refused, right domain/code, the fragment, one line per

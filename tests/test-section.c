@@ -230,6 +230,40 @@ test_interpolation_midway (void **state)
   sf_assert_close (b1->bank_area_m2, 0.5 * (2400.0 + 3000.0), 0, 1e-12);
 }
 
+/* The seam thickness of a surveyed section: the invented demo's block 15 is
+ * given as strings without one, between generated sections at blocks 10
+ * (5.8 m) and 20 (7.0 m), so it takes 5.8 + 5/10 x (7.0 - 5.8) = 6.4 m and
+ * blocks 12 and 17 interpolate on to it (analytic: linear in the block
+ * index); a thickness given with the strings is used as it is. */
+static void
+test_strings_coal_thickness (void **state)
+{
+  (void) state;
+  g_autofree char *path = sf_test_source_path ("scenarios/demo-strip.json");
+  g_autoptr (GError) err = NULL;
+  g_autoptr (SfScenario) sc = sf_scenario_load_from_file (path, &err);
+  assert_non_null (sc);
+  static const struct {
+    guint block;
+    double want_m;
+  } cases[] = { { 15, 6.4 }, { 12, 5.8 + 0.4 * 0.6 }, { 17, 6.4 + 0.4 * 0.6 } };
+  for (gsize c = 0; c < G_N_ELEMENTS (cases); c++)
+    {
+      g_autoptr (SfBlockSection) bs = sf_block_section_new (sc, cases[c].block, &err);
+      assert_non_null (bs);
+      sf_assert_close (bs->coal_thickness_m, cases[c].want_m, 1e-12, 0);
+    }
+  for (guint k = 0; k < sc->sections->len; k++)
+    {
+      SfSectionSpec *spec = g_ptr_array_index (sc->sections, k);
+      if (spec->block == 15)
+        spec->coal_thickness_m = 9.0;
+    }
+  g_autoptr (SfBlockSection) b15 = sf_block_section_new (sc, 15, &err);
+  assert_non_null (b15);
+  sf_assert_close (b15->coal_thickness_m, 9.0, 0, 0);
+}
+
 /* A floor that the spoil line never meets inside the section is refused
  * with a message naming the block. */
 static void
@@ -258,6 +292,7 @@ main (void)
     cmocka_unit_test (test_lifted_pivot_ramp),
     cmocka_unit_test (test_interpolation_midway),
     cmocka_unit_test (test_floor_without_pivot),
+    cmocka_unit_test (test_strings_coal_thickness),
   };
   return cmocka_run_group_tests_name ("section", tests, NULL, NULL);
 }
