@@ -92,11 +92,25 @@ typedef struct {
   guint work_slice;      /* the slice last worked (valid index) */
 } LaneState;
 
+/* One block's section and design: built once for a run (or a set of
+ * replications, which share it read-only: Layout) and never changed. */
 typedef struct {
   SfBlockSection *bs;
   SfSlicePlan *plan;
   double *final;         /* final design in the zone (+inf outside) */
   double *spoil;         /* standard final spoil line */
+} BlockLayout;
+
+typedef struct {
+  guint n_blocks;
+  BlockLayout *blocks;   /* all NULL for a block out of scope */
+} Layout;
+
+typedef struct {
+  const SfBlockSection *bs;  /* these four borrowed from the Layout */
+  const SfSlicePlan *plan;
+  const double *final;
+  double *spoil;
   LaneState *lanes;
   gboolean open;
   guint n_dozers;        /* lanes held */
@@ -811,10 +825,6 @@ world_free (World *w)
           g_free (bk->lanes[l].dumped_keep);
         }
       g_free (bk->lanes);
-      g_free (bk->final);
-      g_free (bk->spoil);
-      sf_slice_plan_free (bk->plan);
-      sf_block_section_free (bk->bs);
     }
   g_free (w->blocks);
   for (guint i = 0; i < w->n_dz; i++)
@@ -831,8 +841,66 @@ world_free (World *w)
   g_free (w);
 }
 
+static void
+layout_free (Layout *lay)
+{
+  if (!lay)
+    return;
+  for (guint b = 0; b < lay->n_blocks; b++)
+    {
+      BlockLayout *bl = &lay->blocks[b];
+      g_free (bl->final);
+      g_free (bl->spoil);
+      sf_slice_plan_free (bl->plan);
+      sf_block_section_free (bl->bs);
+    }
+  g_free (lay->blocks);
+  g_free (lay);
+}
+
+/* Every block's section (settled at the angle of repose: most of the set-up
+ * time), slice plan, spoil line and final design; only `only_block` when it
+ * is >= 0. */
+static Layout *
+layout_new (const SfScenario *sc, int only_block, GError **error)
+{
+  Layout *lay = g_new0 (Layout, 1);
+  lay->n_blocks = sc->strip.n_blocks;
+  lay->blocks = g_new0 (BlockLayout, lay->n_blocks);
+  g_autoptr (SfSectionSet) set = sf_section_set_new (sc, error);
+  if (!set)
+    goto fail;
+  for (guint b = 0; b < lay->n_blocks; b++)
+    {
+      if (only_block >= 0 && (guint) only_block != b)
+        continue;
+      BlockLayout *bl = &lay->blocks[b];
+      bl->bs = sf_block_section_new_from_set (set, sc, b, error);
+      if (!bl->bs)
+        goto fail;
+      bl->plan = sf_slice_plan_new (bl->bs, &sc->design, sc->strip.lane_width_m, error);
+      if (!bl->plan)
+        goto fail;
+      const guint n = bl->bs->n;
+      bl->spoil = g_new (double, n);
+      for (guint i = 0; i < n; i++)
+        bl->spoil[i] = sf_block_section_spoil_line (bl->bs, bl->bs->x0_m + (i + 0.5) * bl->bs->dx_m);
+      /* the final design, from a lane as it stands at the start */
+      SfLane *lane = sf_lane_new (bl->bs->surface, bl->bs->base, n, bl->bs->x0_m, bl->bs->dx_m,
+                                  sc->strip.lane_width_m, bl->bs->tan_repose);
+      bl->final = g_new (double, n);
+      sf_slice_plan_final (bl->plan, sf_slice_plan_zone_end (bl->plan, lane), bl->final, n);
+      sf_lane_free (lane);
+    }
+  return lay;
+fail:
+  layout_free (lay);
+  return NULL;
+}
+
+/* A world over `lay` (borrowed; it must outlive the world). */
 static World *
-world_new (const SfScenario *sc, const SfRunOptions *opt, GError **error)
+world_new (const SfScenario *sc, const SfRunOptions *opt, const Layout *lay)
 {
   World *w = g_new0 (World, 1);
   w->sc = sc;
@@ -846,27 +914,20 @@ world_new (const SfScenario *sc, const SfRunOptions *opt, GError **error)
   w->factors = sf_factors_product (&sc->factors);
   w->shift_factor = 1.0;
   w->blocks = g_new0 (BlockState, w->n_blocks);
-  g_autoptr (SfSectionSet) set = sf_section_set_new (sc, error);
-  if (!set)
-    goto fail;
   for (guint b = 0; b < w->n_blocks; b++)
     {
       BlockState *bk = &w->blocks[b];
       gboolean in_scope = opt->only_block < 0 || (guint) opt->only_block == b;
       if (!in_scope)
         continue;
-      bk->bs = sf_block_section_new_from_set (set, sc, b, error);
-      if (!bk->bs)
-        goto fail;
-      bk->plan = sf_slice_plan_new (bk->bs, &sc->design, sc->strip.lane_width_m, error);
-      if (!bk->plan)
-        goto fail;
+      const BlockLayout *bl = &lay->blocks[b];
+      g_assert (bl->bs != NULL);
+      bk->bs = bl->bs;
+      bk->plan = bl->plan;
+      bk->spoil = bl->spoil;
+      bk->final = bl->final;
       const guint n = bk->bs->n;
-      bk->spoil = g_new (double, n);
-      for (guint i = 0; i < n; i++)
-        bk->spoil[i] = sf_block_section_spoil_line (bk->bs, bk->bs->x0_m + (i + 0.5) * bk->bs->dx_m);
       bk->lanes = g_new0 (LaneState, w->n_lanes);
-      bk->final = g_new (double, n);
       for (guint l = 0; l < w->n_lanes; l++)
         {
           LaneState *ls = &bk->lanes[l];
@@ -883,9 +944,6 @@ world_new (const SfScenario *sc, const SfRunOptions *opt, GError **error)
               ls->dumped_keep = g_memdup2 (ls->lane->dumped, n * sizeof (double));
             }
           sf_lane_cursor_init (&ls->cur, bk->plan, ls->lane);
-          if (l == 0)
-            sf_slice_plan_final (bk->plan, sf_slice_plan_zone_end (bk->plan, ls->lane), bk->final,
-                                 n);
           if (ls->in_scope)
             {
               bk->lanes_left++;
@@ -943,10 +1001,6 @@ world_new (const SfScenario *sc, const SfRunOptions *opt, GError **error)
   w->rng_weather = sf_rng_new (w->seed, opt->replication, 0, RNG_WEATHER);
   w->end_reason = "stopped";
   return w;
-
-fail:
-  world_free (w);
-  return NULL;
 }
 
 static void
@@ -1201,29 +1255,15 @@ sf_run_summary_clear (SfRunSummary *s)
   memset (s, 0, sizeof *s);
 }
 
-/* One run; its four files go into write_dir (NULL: none), named in
- * messages as shown_dir. */
+/* One run over `lay`; its four files go into write_dir (NULL: none), named
+ * in messages as shown_dir. */
 static gboolean
-run_one (const SfScenario *sc, const SfRunOptions *opt, const char *write_dir,
+run_one (const SfScenario *sc, const SfRunOptions *opt, const Layout *lay, const char *write_dir,
          const char *shown_dir, SfRunSummary *sum, GError **error)
 {
-  SfRunOptions o = *opt;
+  SfRunOptions o = *opt; /* checked by run_set */
   memset (sum, 0, sizeof *sum);
-  if (o.only_block >= (int) sc->strip.n_blocks || o.only_lane >= (int) sf_scenario_get_n_lanes (sc))
-    {
-      g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_ARGUMENT,
-                   "block %d / lane %d does not exist in the scenario", o.only_block, o.only_lane);
-      return FALSE;
-    }
-  if (o.n_dozers > SF_MAX_DOZERS)
-    {
-      g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_ARGUMENT,
-                   "%d dozers asked for; the limit is %d", o.n_dozers, SF_MAX_DOZERS);
-      return FALSE;
-    }
-  World *w = world_new (sc, &o, error);
-  if (!w)
-    return FALSE;
+  World *w = world_new (sc, &o, lay);
   w->rep = sf_report_new (write_dir, shown_dir, sc->name, sc->sim.start, w->seed, error);
   if (!w->rep)
     {
@@ -1271,6 +1311,7 @@ run_one (const SfScenario *sc, const SfRunOptions *opt, const char *write_dir,
 typedef struct {
   const SfScenario *sc;
   SfRunOptions opt;
+  const Layout *layout;   /* shared read-only by every replication */
   const char *write_dir;  /* replication 0's files; NULL: none */
   SfRunSummary *sums;
   GError **errors;
@@ -1286,7 +1327,7 @@ rep_worker (gpointer data, gpointer user_data)
   o.replication += r;
   if (r > 0)
     o.progress = FALSE;
-  job->ok[r] = run_one (job->sc, &o, r == 0 ? job->write_dir : NULL,
+  job->ok[r] = run_one (job->sc, &o, job->layout, r == 0 ? job->write_dir : NULL,
                         r == 0 ? job->opt.out_dir : NULL, &job->sums[r], &job->errors[r]);
 }
 
@@ -1318,8 +1359,27 @@ static gboolean
 run_set (const SfScenario *sc, const SfRunOptions *opt, guint first, guint n, guint n_threads,
          SfRunSummary *sums, GError **error)
 {
-  RepJob job = { sc, *opt, NULL, sums, g_new0 (GError *, n), g_new0 (gboolean, n) };
+  RepJob job = { sc, *opt, NULL, NULL, sums, g_new0 (GError *, n), g_new0 (gboolean, n) };
   job.opt.replication = first;
+  for (guint r = 0; r < n; r++)
+    memset (&sums[r], 0, sizeof sums[r]);
+  if (opt->only_block >= (int) sc->strip.n_blocks || opt->only_lane >= (int) sf_scenario_get_n_lanes (sc))
+    {
+      g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_ARGUMENT,
+                   "block %d / lane %d does not exist in the scenario", opt->only_block,
+                   opt->only_lane);
+      g_free (job.errors);
+      g_free (job.ok);
+      return FALSE;
+    }
+  if (opt->n_dozers > SF_MAX_DOZERS)
+    {
+      g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_ARGUMENT,
+                   "%d dozers asked for; the limit is %d", opt->n_dozers, SF_MAX_DOZERS);
+      g_free (job.errors);
+      g_free (job.ok);
+      return FALSE;
+    }
   SfOutDir *od = NULL;
   if (opt->out_dir)
     {
@@ -1334,6 +1394,16 @@ run_set (const SfScenario *sc, const SfRunOptions *opt, guint first, guint n, gu
         }
       job.write_dir = sf_outdir_staging (od);
     }
+  /* the blocks' sections and designs, once for every replication */
+  Layout *lay = layout_new (sc, opt->only_block, error);
+  if (!lay)
+    {
+      sf_outdir_abort (od);
+      g_free (job.errors);
+      g_free (job.ok);
+      return FALSE;
+    }
+  job.layout = lay;
   if (n_threads <= 1 || n == 1)
     for (guint r = 0; r < n; r++)
       rep_worker (GUINT_TO_POINTER (r + 1), &job);
@@ -1391,6 +1461,7 @@ run_set (const SfScenario *sc, const SfRunOptions *opt, guint first, guint n, gu
         g_string_append_printf (notice, "%s%s", notice->len ? "\n" : "", kept);
     }
   sf_outdir_abort (od);
+  layout_free (lay);
   if (ok && notice->len)
     sums[0].notice = g_strdup (notice->str);
   g_string_free (notice, TRUE);
