@@ -3,8 +3,9 @@
  * sf-chart-kit.h — the small drawing kit shared by the chart modules
  * (internal to sim/; built only with cairo, SF_HAVE_CAIRO).
  *
- * Owns nothing: static helpers for sf-chart.c (block studies) and
- * sf-chart-run.c (fleet runs) — colours, text in the C locale and anchored
+ * Owns nothing: static helpers for sf-chart.c (block studies),
+ * sf-chart-run.c (fleet runs) and the replay viewer (viewer/replay-frame.c)
+ * — colours (the time-usage colours and labels among them), text in the C locale and anchored
  * at a point, a data-to-pixel frame, axes with "nice" ticks
  * (sf_chart_tick_step in sf-chart.h), legends, the page (white surface,
  * titles, the caution footer) and writing a PNG atomically.
@@ -42,6 +43,56 @@
 typedef struct {
   double r, g, b;
 } Rgb;
+
+/* Time-usage colours, one per SfUse and fixed, shared by the run charts and
+ * the replay viewer so that a planner reads both alike: greens for work,
+ * yellows and oranges for waiting, reds for unplanned repairs, purples for
+ * planned servicing, blues for the roster's stops, greys for no operator,
+ * weather and no more work. */
+static inline const Rgb *
+use_rgb (SfUse u)
+{
+  static const Rgb rgb[] = {
+    [SF_USE_OPERATING] = { 0.000, 0.620, 0.451 },
+    [SF_USE_WAIT_LANE] = { 0.902, 0.624, 0.000 },
+    [SF_USE_WAIT_BLAST] = { 0.960, 0.820, 0.420 },
+    [SF_USE_TRAMMING] = { 0.550, 0.800, 0.550 },
+    [SF_USE_BREAKDOWN] = { 0.835, 0.369, 0.000 },
+    [SF_USE_WAIT_FITTER] = { 0.600, 0.100, 0.100 },
+    [SF_USE_SERVICE] = { 0.800, 0.475, 0.655 },
+    [SF_USE_REFUEL] = { 0.500, 0.350, 0.650 },
+    [SF_USE_SHIFT_CHANGE] = { 0.000, 0.447, 0.698 },
+    [SF_USE_MEAL] = { 0.337, 0.706, 0.914 },
+    [SF_USE_UNMANNED] = { 0.550, 0.550, 0.550 },
+    [SF_USE_WEATHER] = { 0.300, 0.380, 0.460 },
+    [SF_USE_IDLE_DONE] = { 0.850, 0.850, 0.850 },
+  };
+  G_STATIC_ASSERT (G_N_ELEMENTS (rgb) == SF_USE_N);
+  return &rgb[u < SF_USE_N ? u : SF_USE_IDLE_DONE];
+}
+
+/* What each time-usage category means, for legends. */
+static inline const char *
+use_label (SfUse u)
+{
+  static const char *const label[] = {
+    [SF_USE_OPERATING] = "operating (pushing)",
+    [SF_USE_WAIT_LANE] = "waiting for a free lane",
+    [SF_USE_WAIT_BLAST] = "waiting for a blast",
+    [SF_USE_TRAMMING] = "tramming",
+    [SF_USE_BREAKDOWN] = "breakdown, under repair",
+    [SF_USE_WAIT_FITTER] = "waiting for a fitter",
+    [SF_USE_SERVICE] = "planned service",
+    [SF_USE_REFUEL] = "refuelling",
+    [SF_USE_SHIFT_CHANGE] = "shift change",
+    [SF_USE_MEAL] = "meal break",
+    [SF_USE_UNMANNED] = "unmanned (no operator)",
+    [SF_USE_WEATHER] = "weather stop",
+    [SF_USE_IDLE_DONE] = "idle, no more work",
+  };
+  G_STATIC_ASSERT (G_N_ELEMENTS (label) == SF_USE_N);
+  return u < SF_USE_N ? label[u] : "?";
+}
 
 static const Rgb RGB_TEXT = { 0.10, 0.10, 0.10 };
 static const Rgb RGB_GRID = { 0.88, 0.88, 0.88 };

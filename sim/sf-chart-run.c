@@ -484,44 +484,6 @@ static const Rgb DOZER_RGB[] = {
   { 0.000, 0.000, 0.000 }, /* black */
 };
 
-/* Usage colours, one per SfUse and fixed: greens for work, yellows and
- * oranges for waiting, reds for unplanned repairs, purples for planned
- * servicing, blues for the roster's stops, greys for no operator, weather
- * and no more work. */
-static const Rgb USE_RGB[] = {
-  [SF_USE_OPERATING] = { 0.000, 0.620, 0.451 },
-  [SF_USE_WAIT_LANE] = { 0.902, 0.624, 0.000 },
-  [SF_USE_WAIT_BLAST] = { 0.960, 0.820, 0.420 },
-  [SF_USE_TRAMMING] = { 0.550, 0.800, 0.550 },
-  [SF_USE_BREAKDOWN] = { 0.835, 0.369, 0.000 },
-  [SF_USE_WAIT_FITTER] = { 0.600, 0.100, 0.100 },
-  [SF_USE_SERVICE] = { 0.800, 0.475, 0.655 },
-  [SF_USE_REFUEL] = { 0.500, 0.350, 0.650 },
-  [SF_USE_SHIFT_CHANGE] = { 0.000, 0.447, 0.698 },
-  [SF_USE_MEAL] = { 0.337, 0.706, 0.914 },
-  [SF_USE_UNMANNED] = { 0.550, 0.550, 0.550 },
-  [SF_USE_WEATHER] = { 0.300, 0.380, 0.460 },
-  [SF_USE_IDLE_DONE] = { 0.850, 0.850, 0.850 },
-};
-G_STATIC_ASSERT (G_N_ELEMENTS (USE_RGB) == SF_USE_N);
-
-/* What each category means, for the legend. */
-static const char *const USE_LABEL[] = {
-  [SF_USE_OPERATING] = "operating (pushing)",
-  [SF_USE_WAIT_LANE] = "waiting for a free lane",
-  [SF_USE_WAIT_BLAST] = "waiting for a blast",
-  [SF_USE_TRAMMING] = "tramming",
-  [SF_USE_BREAKDOWN] = "breakdown, under repair",
-  [SF_USE_WAIT_FITTER] = "waiting for a fitter",
-  [SF_USE_SERVICE] = "planned service",
-  [SF_USE_REFUEL] = "refuelling",
-  [SF_USE_SHIFT_CHANGE] = "shift change",
-  [SF_USE_MEAL] = "meal break",
-  [SF_USE_UNMANNED] = "unmanned (no operator)",
-  [SF_USE_WEATHER] = "weather stop",
-  [SF_USE_IDLE_DONE] = "idle, no more work",
-};
-G_STATIC_ASSERT (G_N_ELEMENTS (USE_LABEL) == SF_USE_N);
 
 static const char *const MONTH_ABBR[12] = { "Jan", "Feb", "Mar", "Apr", "May", "Jun",
                                             "Jul", "Aug", "Sep", "Oct", "Nov", "Dec" };
@@ -849,7 +811,7 @@ draw_usage (const RunData *rd, const char *dir, GError **error)
           if (d->use_h[k] <= 0)
             continue;
           double u0 = px (&f, h0), u1 = px (&f, h0 + d->use_h[k]);
-          set_rgb (cr, &USE_RGB[k]);
+          set_rgb (cr, use_rgb (k));
           cairo_rectangle (cr, u0, v0, u1 - u0, bh);
           cairo_fill (cr);
           h0 += d->use_h[k];
@@ -866,7 +828,7 @@ draw_usage (const RunData *rd, const char *dir, GError **error)
           g_autofree char *s = fmt ("%.0f h", d->use_h[k]);
           if (text_width (cr, s) + 6 > u1 - u0)
             continue;
-          set_text_on (cr, &USE_RGB[k]);
+          set_text_on (cr, use_rgb (k));
           text_at (cr, 0.5 * (u0 + u1), vc, 0.5, 0.5, s);
         }
       /* a thin outline so that light segments keep their edge */
@@ -916,14 +878,14 @@ draw_usage (const RunData *rd, const char *dir, GError **error)
     {
       guint col = (guint) k / legend_rows, row = (guint) k % legend_rows;
       double x = 24 + col * col_w, y = legend_top + row * 22.0;
-      set_rgb (cr, &USE_RGB[k]);
+      set_rgb (cr, use_rgb (k));
       cairo_rectangle (cr, x, y + 2, 26, 14);
       cairo_fill (cr);
       cairo_set_source_rgba (cr, 0.2, 0.2, 0.2, 0.6);
       cairo_set_line_width (cr, 1.0);
       cairo_rectangle (cr, x + 0.5, y + 2.5, 25, 13);
       cairo_stroke (cr);
-      g_autofree char *s = fmt ("%s  %.0f h, %.1f %%", USE_LABEL[k], fleet_h[k],
+      g_autofree char *s = fmt ("%s  %.0f h, %.1f %%", use_label (k), fleet_h[k],
                                 all_h > 0 ? 100.0 * fleet_h[k] / all_h : 0.0);
       font (cr, 13, FALSE);
       set_rgb (cr, &RGB_TEXT);

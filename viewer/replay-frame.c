@@ -31,41 +31,6 @@
 #define W REPLAY_FRAME_WIDTH_PX
 #define H REPLAY_FRAME_HEIGHT_PX
 
-/* Usage colours and labels: the same as the run chart usage.png
- * (sim/sf-chart-run.c), so that a planner reads both alike. */
-static const Rgb USE_RGB[] = {
-  [SF_USE_OPERATING] = { 0.000, 0.620, 0.451 },
-  [SF_USE_WAIT_LANE] = { 0.902, 0.624, 0.000 },
-  [SF_USE_WAIT_BLAST] = { 0.960, 0.820, 0.420 },
-  [SF_USE_TRAMMING] = { 0.550, 0.800, 0.550 },
-  [SF_USE_BREAKDOWN] = { 0.835, 0.369, 0.000 },
-  [SF_USE_WAIT_FITTER] = { 0.600, 0.100, 0.100 },
-  [SF_USE_SERVICE] = { 0.800, 0.475, 0.655 },
-  [SF_USE_REFUEL] = { 0.500, 0.350, 0.650 },
-  [SF_USE_SHIFT_CHANGE] = { 0.000, 0.447, 0.698 },
-  [SF_USE_MEAL] = { 0.337, 0.706, 0.914 },
-  [SF_USE_UNMANNED] = { 0.550, 0.550, 0.550 },
-  [SF_USE_WEATHER] = { 0.300, 0.380, 0.460 },
-  [SF_USE_IDLE_DONE] = { 0.850, 0.850, 0.850 },
-};
-G_STATIC_ASSERT (G_N_ELEMENTS (USE_RGB) == SF_USE_N);
-
-static const char *const USE_LABEL[] = {
-  [SF_USE_OPERATING] = "operating (pushing)",
-  [SF_USE_WAIT_LANE] = "waiting for a free lane",
-  [SF_USE_WAIT_BLAST] = "waiting for a blast",
-  [SF_USE_TRAMMING] = "tramming",
-  [SF_USE_BREAKDOWN] = "breakdown, under repair",
-  [SF_USE_WAIT_FITTER] = "waiting for a fitter",
-  [SF_USE_SERVICE] = "planned service",
-  [SF_USE_REFUEL] = "refuelling",
-  [SF_USE_SHIFT_CHANGE] = "shift change",
-  [SF_USE_MEAL] = "meal break",
-  [SF_USE_UNMANNED] = "unmanned (no operator)",
-  [SF_USE_WEATHER] = "weather stop",
-  [SF_USE_IDLE_DONE] = "idle, no more work",
-};
-G_STATIC_ASSERT (G_N_ELEMENTS (USE_LABEL) == SF_USE_N);
 
 /* The strip's own colours: browns and slate, apart from the categories. */
 static const Rgb RGB_LANE_NEW = { 0.955, 0.935, 0.880 };   /* nothing finished */
@@ -237,7 +202,7 @@ draw_overview (cairo_t *cr, const SfReplayState *st, guint b0, guint nb)
       cairo_line_to (cr, x - 5, OV_TOP - 11);
       cairo_line_to (cr, x + 5, OV_TOP - 11);
       cairo_close_path (cr);
-      set_rgb (cr, &USE_RGB[d->use]);
+      set_rgb (cr, use_rgb (d->use));
       cairo_fill_preserve (cr);
       cairo_set_source_rgb (cr, 0.2, 0.2, 0.2);
       cairo_set_line_width (cr, 0.8);
@@ -385,7 +350,7 @@ draw_detail (cairo_t *cr, const SfReplay *rp, const SfReplayState *st, guint b0,
         }
       cairo_new_sub_path (cr);
       cairo_arc (cr, m->x, m->y, r, 0, 2 * G_PI);
-      set_rgb (cr, &USE_RGB[d->use]);
+      set_rgb (cr, use_rgb (d->use));
       if (m->known)
         cairo_fill_preserve (cr);
       else
@@ -475,7 +440,7 @@ draw_table (cairo_t *cr, const SfReplayState *st)
       const double x = LEFT + (i / per_col) * col_w, y = TABLE_TOP + (i % per_col) * ROW_H;
       cairo_new_sub_path (cr);
       cairo_arc (cr, x + 7, y + 8, 6, 0, 2 * G_PI);
-      set_rgb (cr, &USE_RGB[d->use]);
+      set_rgb (cr, use_rgb (d->use));
       cairo_fill_preserve (cr);
       cairo_set_source_rgb (cr, 0.1, 0.1, 0.1);
       cairo_set_line_width (cr, 1.0);
@@ -484,7 +449,7 @@ draw_table (cairo_t *cr, const SfReplayState *st)
       font (cr, 13, TRUE);
       text_at (cr, x + 20, y + 8, 0.0, 0.5, d->name);
       font (cr, 13, FALSE);
-      text_at (cr, x + 62, y + 8, 0.0, 0.5, USE_LABEL[d->use]);
+      text_at (cr, x + 62, y + 8, 0.0, 0.5, use_label (d->use));
       g_autofree char *lane = d->block >= 0 ? fmt ("%d, %d", d->block, d->lane)
                                             : g_strdup ("none");
       text_at (cr, x + 236, y + 8, 0.0, 0.5, lane);
@@ -575,7 +540,7 @@ draw_status (cairo_t *cr, const SfReplay *rp, const SfReplayState *st, const Rep
   Legend lg = { COL_X, y, W - 24 - COL_X };
   legend_heading (cr, &lg, "Time-usage category");
   for (int k = 0; k < SF_USE_N; k++)
-    legend_entry (cr, &lg, KEY_FILL, &USE_RGB[k], 1.0, 0, NULL, 0, USE_LABEL[k], NULL);
+    legend_entry (cr, &lg, KEY_FILL, use_rgb (k), 1.0, 0, NULL, 0, use_label (k), NULL);
   lg.y += 8;
   legend_heading (cr, &lg, "Lanes (fill: share of slices finished)");
   legend_entry (cr, &lg, KEY_FILL, &RGB_LANE_WORK, 1.0, 0, NULL, 0, "slices finished", NULL);
