@@ -134,6 +134,13 @@ typedef struct {
 GArray *sf_study_slice_plan (const SfScenario *sc, guint block, const SfStudyOptions *opt,
                              GError **error);
 
+/* Lays out every block of the scenario as a run would (its section settled
+ * at the angle of repose, its design and slice plan), building the given
+ * sections once.  FALSE when any block cannot be laid out: one error whose
+ * message has a line per such block, each naming it.  *n_bad (may be NULL)
+ * receives the number of such blocks. */
+gboolean sf_study_check_blocks (const SfScenario *sc, guint *n_bad, GError **error);
+
 /* Pushes one lane of `block` to completion with one machine of class
  * `class_index`; returns a GArray of SfSliceResult (caller frees) and fills
  * *totals. */

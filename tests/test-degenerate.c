@@ -254,6 +254,16 @@ test_floor_above_ground (void **state)
   assert_false (o.plan_ok || o.lane_ok || o.run_ok);
   assert_non_null (strstr (o.plan_msg, "nothing to doze"));
   assert_non_null (strstr (o.run_msg, "nothing to doze"));
+  /* the check of every block (validate) says the same, once per block */
+  g_autoptr (GError) err = NULL;
+  guint n_bad = 99;
+  assert_false (sf_study_check_blocks (sc, &n_bad, &err));
+  assert_int_equal (n_bad, 1);
+  assert_non_null (strstr (err->message, "nothing to doze"));
+  assert_null (strchr (err->message, '\n'));
+  g_autoptr (SfScenario) ok = SCENARIO (NULL);
+  assert_true (sf_study_check_blocks (ok, &n_bad, NULL));
+  assert_int_equal (n_bad, 0);
 }
 
 /* A surveyed block whose void is already full to the natural surface: no

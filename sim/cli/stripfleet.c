@@ -87,21 +87,16 @@ verb_validate (int argc, char **argv)
   g_autoptr (SfScenario) sc = load_or_report (argv[1], &rc);
   if (!sc)
     return rc;
-  /* The loader checks fields; building every block's section and plan checks
-   * the geometry. */
-  int bad = 0;
-  for (guint b = 0; b < sf_scenario_get_n_blocks (sc); b++)
+  /* The loader checks fields; laying out every block (section and plan)
+   * checks the geometry. */
+  g_autoptr (GError) err = NULL;
+  if (!sf_study_check_blocks (sc, NULL, &err))
     {
-      g_autoptr (GError) err = NULL;
-      g_autoptr (GArray) plan = sf_study_slice_plan (sc, b, NULL, &err);
-      if (!plan)
-        {
-          g_printerr ("%s: %s\n", argv[1], err->message);
-          bad++;
-        }
+      g_auto (GStrv) lines = g_strsplit (err->message, "\n", -1);
+      for (char **l = lines; *l; l++)
+        g_printerr ("%s: %s\n", argv[1], *l);
+      return SF_EXIT_INVALID;
     }
-  if (bad)
-    return SF_EXIT_INVALID;
   printf ("%s: valid (%u blocks, %u lanes per block, %u dozer classes)\n", argv[1],
           sf_scenario_get_n_blocks (sc), sf_scenario_get_n_lanes (sc),
           sf_scenario_get_n_classes (sc));
