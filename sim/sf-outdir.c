@@ -360,8 +360,10 @@ sf_outdir_begin (const char *out_dir, const char *scenario_name, gboolean overwr
     }
   else
     {
-      g_autofree char *parent = g_path_get_dirname (out_dir);
-      g_autofree char *base = g_path_get_basename (out_dir);
+      /* "runs/a/", "runs/./a": the folder a, in runs */
+      g_autofree char *canon = g_canonicalize_filename (out_dir, NULL);
+      g_autofree char *parent = g_path_get_dirname (canon);
+      g_autofree char *base = g_path_get_basename (canon);
       char *rp = NULL;
       if (g_mkdir_with_parents (parent, 0777) != 0 || !(rp = realpath (parent, NULL)))
         {

@@ -150,6 +150,13 @@ test_new_folder (void **state)
   assert_file (deep, "summary.json", sum);
   g_autofree char *parent = g_path_get_dirname (deep);
   assert_int_equal (count_staging (parent), 0);
+  /* a new folder named with a trailing slash and "." parts is that folder,
+   * not one inside it */
+  g_autofree char *odd = g_strconcat (f->dir, "/./c/new/", NULL);
+  g_free (run_set (odd, 2, FALSE, FALSE));
+  g_autofree char *plain = g_build_filename (f->dir, "c", "new", NULL);
+  assert_file (plain, "events.log", "seed 2\n");
+  assert_absent (plain, "new");
 }
 
 /* A second run swaps the folder (RENAME_EXCHANGE: the folder's inode
