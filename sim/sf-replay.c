@@ -28,6 +28,7 @@
 #include <string.h>
 #include <sys/stat.h>
 
+#include <cjson/cJSON.h>
 #include <glib/gstdio.h>
 
 #include "sf-scenario.h"
@@ -599,6 +600,25 @@ sf_replay_free (SfReplay *rp)
   g_free (rp);
 }
 
+/* The fleet size of the run whose summary.json lies beside events_path (its
+ * "dozers" array), or 0 when there is none to read: a run made with
+ * `--dozers N` replays without being told N. */
+static guint
+fleet_from_summary (const char *events_path)
+{
+  g_autofree char *dir = g_path_get_dirname (events_path);
+  g_autofree char *path = g_build_filename (dir, "summary.json", NULL);
+  g_autofree char *text = NULL;
+  gsize len = 0;
+  if (!g_file_get_contents (path, &text, &len, NULL))
+    return 0;
+  cJSON *root = cJSON_ParseWithLength (text, len);
+  const cJSON *dz = cJSON_GetObjectItemCaseSensitive (root, "dozers");
+  int n = cJSON_IsArray (dz) ? cJSON_GetArraySize (dz) : 0;
+  cJSON_Delete (root);
+  return n > 0 ? (guint) n : 0;
+}
+
 SfReplay *
 sf_replay_load (const char *events_path, const SfScenario *sc, guint n_dozers, GError **error)
 {
@@ -612,6 +632,8 @@ sf_replay_load (const char *events_path, const SfScenario *sc, guint n_dozers, G
   guint fleet = 0;
   for (guint i = 0; i < sc->fleet->len; i++)
     fleet += g_array_index (sc->fleet, SfFleetEntry, i).count;
+  if (n_dozers == 0)
+    n_dozers = fleet_from_summary (events_path);
   rp->n_dozers = n_dozers > 0 ? n_dozers : fleet;
   rp->n_blocks = sf_scenario_get_n_blocks (sc);
   rp->n_lanes = sf_scenario_get_n_lanes (sc);

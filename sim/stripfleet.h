@@ -323,8 +323,8 @@ typedef struct _SfReplay SfReplay;
  * "stripfleet-run-1" and the name of scenario `sc` (the scenario the run was
  * made from); every line must be as sf_run() writes it, times must not go
  * back, and dozer, block, lane, shift and crew indices must exist in `sc`
- * with a fleet of `n_dozers` (0: the scenario's fleet; give the number the
- * run was made with `--dozers`).  The first problem fails the load with an
+ * with a fleet of `n_dozers` (0: the length of the "dozers" array of the
+ * summary.json beside the log, else the scenario's fleet).  The first problem fails the load with an
  * SF_SCENARIO_ERROR naming the file and line, the field and what was
  * expected (a G_FILE_ERROR when the file cannot be read).  Memory grows with
  * the log: about 50 bytes a line. */

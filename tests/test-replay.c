@@ -422,6 +422,22 @@ test_bad_logs (void **state)
   g_autoptr (SfReplay) ok = sf_replay_load (path, r->sc, 7, &err);
   assert_non_null (ok);
   assert_int_equal (sf_replay_get_n_events (ok), 4);
+  /* ... and so does a summary.json beside the log whose "dozers" lists
+   * seven (a run made with --dozers 7), without being told */
+  g_autofree char *sub = g_build_filename (r->dir, "seven", NULL);
+  g_autofree char *sub_log = g_build_filename (sub, "events.log", NULL);
+  g_autofree char *sub_sum = g_build_filename (sub, "summary.json", NULL);
+  assert_int_equal (g_mkdir_with_parents (sub, 0755), 0);
+  assert_true (g_file_set_contents (sub_log, HEADER GOOD_LINES
+                                    "20000 operating 6 0 0 -1 0.000 0.000 0.000\n", -1, NULL));
+  assert_true (g_file_set_contents (sub_sum, "{\"dozers\": [{}, {}, {}, {}, {}, {}, {}]}\n", -1,
+                                    NULL));
+  g_autoptr (SfReplay) seven = sf_replay_load (sub_log, r->sc, 0, &err);
+  assert_non_null (seven);
+  assert_int_equal (sf_replay_get_n_dozers (seven), 7);
+  g_unlink (sub_log);
+  g_unlink (sub_sum);
+  g_rmdir (sub);
   g_unlink (path);
   /* a missing file: the file error, naming it */
   g_autoptr (GError) err2 = NULL;
