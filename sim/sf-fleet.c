@@ -860,10 +860,11 @@ layout_free (Layout *lay)
 
 /* Every block's section (settled at the angle of repose: most of the set-up
  * time), slice plan, spoil line and final design; only `only_block` when it
- * is >= 0. */
+ * is >= 0.  `progress`: a line on stderr (a terminal) while it works. */
 static Layout *
-layout_new (const SfScenario *sc, int only_block, GError **error)
+layout_new (const SfScenario *sc, int only_block, gboolean progress, GError **error)
 {
+  progress = progress && isatty (2);
   Layout *lay = g_new0 (Layout, 1);
   lay->n_blocks = sc->strip.n_blocks;
   lay->blocks = g_new0 (BlockLayout, lay->n_blocks);
@@ -874,6 +875,8 @@ layout_new (const SfScenario *sc, int only_block, GError **error)
     {
       if (only_block >= 0 && (guint) only_block != b)
         continue;
+      if (progress)
+        fprintf (stderr, "\r  laying out block %u of %u", b + 1, lay->n_blocks);
       BlockLayout *bl = &lay->blocks[b];
       bl->bs = sf_block_section_new_from_set (set, sc, b, error);
       if (!bl->bs)
@@ -892,8 +895,12 @@ layout_new (const SfScenario *sc, int only_block, GError **error)
       sf_slice_plan_final (bl->plan, sf_slice_plan_zone_end (bl->plan, lane), bl->final, n);
       sf_lane_free (lane);
     }
+  if (progress)
+    fprintf (stderr, "\r%-40s\r", "");
   return lay;
 fail:
+  if (progress)
+    fprintf (stderr, "\n");
   layout_free (lay);
   return NULL;
 }
@@ -1313,6 +1320,10 @@ typedef struct {
   SfRunOptions opt;
   const Layout *layout;   /* shared read-only by every replication */
   const char *write_dir;  /* replication 0's files; NULL: none */
+  gboolean count_done;    /* a "replications done" line on stderr */
+  gint n_done;            /* atomic */
+  guint n;
+  GMutex print_lock;
   SfRunSummary *sums;
   GError **errors;
   gboolean *ok;
@@ -1329,6 +1340,14 @@ rep_worker (gpointer data, gpointer user_data)
     o.progress = FALSE;
   job->ok[r] = run_one (job->sc, &o, job->layout, r == 0 ? job->write_dir : NULL,
                         r == 0 ? job->opt.out_dir : NULL, &job->sums[r], &job->errors[r]);
+  if (job->count_done)
+    {
+      gint done = g_atomic_int_add (&job->n_done, 1) + 1;
+      g_mutex_lock (&job->print_lock);
+      fprintf (stderr, "\r  replications done %d of %u%s", done, job->n,
+               (guint) done == job->n ? "\n" : "");
+      g_mutex_unlock (&job->print_lock);
+    }
 }
 
 static char *
@@ -1359,51 +1378,41 @@ static gboolean
 run_set (const SfScenario *sc, const SfRunOptions *opt, guint first, guint n, guint n_threads,
          SfRunSummary *sums, GError **error)
 {
-  RepJob job = { sc, *opt, NULL, NULL, sums, g_new0 (GError *, n), g_new0 (gboolean, n) };
-  job.opt.replication = first;
   for (guint r = 0; r < n; r++)
     memset (&sums[r], 0, sizeof sums[r]);
-  if (opt->only_block >= (int) sc->strip.n_blocks || opt->only_lane >= (int) sf_scenario_get_n_lanes (sc))
+  if (opt->only_block >= (int) sc->strip.n_blocks
+      || opt->only_lane >= (int) sf_scenario_get_n_lanes (sc))
     {
       g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_ARGUMENT,
                    "block %d / lane %d does not exist in the scenario", opt->only_block,
                    opt->only_lane);
-      g_free (job.errors);
-      g_free (job.ok);
       return FALSE;
     }
   if (opt->n_dozers > SF_MAX_DOZERS)
     {
       g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_ARGUMENT,
                    "%d dozers asked for; the limit is %d", opt->n_dozers, SF_MAX_DOZERS);
-      g_free (job.errors);
-      g_free (job.ok);
       return FALSE;
     }
   SfOutDir *od = NULL;
-  if (opt->out_dir)
-    {
-      od = sf_outdir_begin (opt->out_dir, sc->name, opt->overwrite, FALSE, error);
-      if (!od)
-        {
-          g_free (job.errors);
-          g_free (job.ok);
-          for (guint r = 0; r < n; r++)
-            memset (&sums[r], 0, sizeof sums[r]);
-          return FALSE;
-        }
-      job.write_dir = sf_outdir_staging (od);
-    }
+  if (opt->out_dir && !(od = sf_outdir_begin (opt->out_dir, sc->name, opt->overwrite, FALSE, error)))
+    return FALSE;
   /* the blocks' sections and designs, once for every replication */
-  Layout *lay = layout_new (sc, opt->only_block, error);
+  Layout *lay = layout_new (sc, opt->only_block, opt->progress, error);
   if (!lay)
     {
       sf_outdir_abort (od);
-      g_free (job.errors);
-      g_free (job.ok);
       return FALSE;
     }
-  job.layout = lay;
+  RepJob job = { .sc = sc, .opt = *opt, .layout = lay, .sums = sums,
+                 .write_dir = od ? sf_outdir_staging (od) : NULL,
+                 .errors = g_new0 (GError *, n), .ok = g_new0 (gboolean, n), .n = n };
+  g_mutex_init (&job.print_lock);
+  /* one run shows its own progress line; several count what is done */
+  job.count_done = n > 1 && opt->progress && isatty (2);
+  if (n > 1)
+    job.opt.progress = FALSE;
+  job.opt.replication = first;
   if (n_threads <= 1 || n == 1)
     for (guint r = 0; r < n; r++)
       rep_worker (GUINT_TO_POINTER (r + 1), &job);
@@ -1473,6 +1482,7 @@ run_set (const SfScenario *sc, const SfRunOptions *opt, guint first, guint n, gu
     }
   g_free (job.errors);
   g_free (job.ok);
+  g_mutex_clear (&job.print_lock);
   return ok;
 }
 
@@ -1494,7 +1504,6 @@ sf_run_replications (const SfScenario *sc, const SfRunOptions *opt, guint n, gui
   SfRunOptions o = SF_RUN_OPTIONS_INIT;
   if (opt)
     o = *opt;
-  o.progress = FALSE;
   return run_set (sc, &o, 0, n, n_threads, sums, error);
 }
 

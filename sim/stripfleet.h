@@ -178,7 +178,8 @@ typedef struct {
                                fleet order and repeated; each crew's operators are scaled
                                with the fleet (ceil(operators x n_dozers / fleet size), at
                                most n_dozers) unless `operators` is set */
-  gboolean progress;        /* a progress line on stderr when it is a terminal */
+  gboolean progress;        /* a progress line on stderr when it is a terminal (with
+                               replications: the number done) */
   gboolean no_randomness;   /* no breakdowns and no weather (what-if runs, tests) */
   gboolean constant_lanes;  /* test lanes: the ground is put back after every push, so every
                                push repeats the first (constant push distance) */
