@@ -858,36 +858,40 @@ layout_free (Layout *lay)
   g_free (lay);
 }
 
-/* Every block's section (settled at the angle of repose: most of the set-up
- * time), slice plan, spoil line and final design; only `only_block` when it
- * is >= 0.  `progress`: a line on stderr (a terminal) while it works. */
-static Layout *
-layout_new (const SfScenario *sc, int only_block, gboolean progress, GError **error)
+/* Laying out the blocks on a thread pool: each block is independent of the
+ * others and reads only the shared set of given sections, so the layout is
+ * the same whatever the number of threads. */
+typedef struct {
+  const SfScenario *sc;
+  const SfSectionSet *set;
+  Layout *lay;
+  GError **errors;   /* per block */
+  gboolean progress;
+  gint n_done;       /* atomic */
+  guint n_todo;
+  GMutex print_lock;
+} LayoutJob;
+
+/* Block b's section (settled at the angle of repose: most of the set-up
+ * time), slice plan, spoil line and final design, or errors[b]. */
+static void
+layout_block (gpointer data, gpointer user_data)
 {
-  progress = progress && isatty (2);
-  Layout *lay = g_new0 (Layout, 1);
-  lay->n_blocks = sc->strip.n_blocks;
-  lay->blocks = g_new0 (BlockLayout, lay->n_blocks);
-  g_autoptr (SfSectionSet) set = sf_section_set_new (sc, error);
-  if (!set)
-    goto fail;
-  for (guint b = 0; b < lay->n_blocks; b++)
+  LayoutJob *job = user_data;
+  const SfScenario *sc = job->sc;
+  guint b = GPOINTER_TO_UINT (data) - 1;
+  BlockLayout *bl = &job->lay->blocks[b];
+  GError **error = &job->errors[b];
+  bl->bs = sf_block_section_new_from_set (job->set, sc, b, error);
+  if (bl->bs)
+    bl->plan = sf_slice_plan_new (bl->bs, &sc->design, sc->strip.lane_width_m, error);
+  if (bl->plan)
     {
-      if (only_block >= 0 && (guint) only_block != b)
-        continue;
-      if (progress)
-        fprintf (stderr, "\r  laying out block %u of %u", b + 1, lay->n_blocks);
-      BlockLayout *bl = &lay->blocks[b];
-      bl->bs = sf_block_section_new_from_set (set, sc, b, error);
-      if (!bl->bs)
-        goto fail;
-      bl->plan = sf_slice_plan_new (bl->bs, &sc->design, sc->strip.lane_width_m, error);
-      if (!bl->plan)
-        goto fail;
       const guint n = bl->bs->n;
       bl->spoil = g_new (double, n);
       for (guint i = 0; i < n; i++)
-        bl->spoil[i] = sf_block_section_spoil_line (bl->bs, bl->bs->x0_m + (i + 0.5) * bl->bs->dx_m);
+        bl->spoil[i]
+          = sf_block_section_spoil_line (bl->bs, bl->bs->x0_m + (i + 0.5) * bl->bs->dx_m);
       /* the final design, from a lane as it stands at the start */
       SfLane *lane = sf_lane_new (bl->bs->surface, bl->bs->base, n, bl->bs->x0_m, bl->bs->dx_m,
                                   sc->strip.lane_width_m, bl->bs->tan_repose);
@@ -895,14 +899,69 @@ layout_new (const SfScenario *sc, int only_block, gboolean progress, GError **er
       sf_slice_plan_final (bl->plan, sf_slice_plan_zone_end (bl->plan, lane), bl->final, n);
       sf_lane_free (lane);
     }
-  if (progress)
+  if (job->progress)
+    {
+      gint done = g_atomic_int_add (&job->n_done, 1) + 1;
+      g_mutex_lock (&job->print_lock);
+      fprintf (stderr, "\r  laying out blocks: %d of %u", done, job->n_todo);
+      g_mutex_unlock (&job->print_lock);
+    }
+}
+
+/* Every block's layout (only `only_block` when it is >= 0) on up to as many
+ * threads as there are processors; the first failure in block order is the
+ * error.  `progress`: a line on stderr (a terminal) while it works. */
+static Layout *
+layout_new (const SfScenario *sc, int only_block, gboolean progress, GError **error)
+{
+  Layout *lay = g_new0 (Layout, 1);
+  lay->n_blocks = sc->strip.n_blocks;
+  lay->blocks = g_new0 (BlockLayout, lay->n_blocks);
+  g_autoptr (SfSectionSet) set = sf_section_set_new (sc, error);
+  if (!set)
+    {
+      layout_free (lay);
+      return NULL;
+    }
+  LayoutJob job = { .sc = sc, .set = set, .lay = lay,
+                    .errors = g_new0 (GError *, lay->n_blocks),
+                    .progress = progress && isatty (2),
+                    .n_todo = only_block >= 0 ? 1 : lay->n_blocks };
+  g_mutex_init (&job.print_lock);
+  guint n_threads = MIN ((guint) g_get_num_processors (), job.n_todo);
+  GThreadPool *pool = n_threads > 1
+                        ? g_thread_pool_new (layout_block, &job, (gint) n_threads, TRUE, NULL)
+                        : NULL;
+  for (guint b = 0; b < lay->n_blocks; b++)
+    {
+      if (only_block >= 0 && (guint) only_block != b)
+        continue;
+      if (pool)
+        g_thread_pool_push (pool, GUINT_TO_POINTER (b + 1), NULL);
+      else
+        layout_block (GUINT_TO_POINTER (b + 1), &job);
+    }
+  if (pool)
+    g_thread_pool_free (pool, FALSE, TRUE);
+  if (job.progress)
     fprintf (stderr, "\r%-40s\r", "");
+  gboolean ok = TRUE;
+  for (guint b = 0; b < lay->n_blocks; b++)
+    if (job.errors[b])
+      {
+        if (ok)
+          g_propagate_error (error, g_steal_pointer (&job.errors[b]));
+        ok = FALSE;
+        g_clear_error (&job.errors[b]);
+      }
+  g_free (job.errors);
+  g_mutex_clear (&job.print_lock);
+  if (!ok)
+    {
+      layout_free (lay);
+      return NULL;
+    }
   return lay;
-fail:
-  if (progress)
-    fprintf (stderr, "\n");
-  layout_free (lay);
-  return NULL;
 }
 
 /* A world over `lay` (borrowed; it must outlive the world). */
