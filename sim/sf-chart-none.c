@@ -48,3 +48,9 @@ sf_chart_run_outputs (const char *out_dir, GError **error)
                out_dir ? out_dir : "(none)");
   return FALSE;
 }
+
+gboolean
+sf_chart_run_spread (const char *out_dir, GError **error)
+{
+  return sf_chart_run_outputs (out_dir, error);
+}

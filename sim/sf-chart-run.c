@@ -42,6 +42,10 @@
 #define SCHEDULE_HEADER                                                                    \
   "block,lane,slice,kind,start,finish,start_h,finish_h,dozer,pushes,moved_bcm,end"
 #define SCHEDULE_FIELDS 12
+#define REPLICATIONS_HEADER                                                                \
+  "replication,complete,calendar_h,moved_bcm,bcm_per_operating_h,bcm_per_calendar_h,"     \
+  "strip_m_per_day,coal_t_per_day,cost_per_bcm,failures"
+#define REPLICATIONS_FIELDS 10
 
 /* Numbers in the CSV files carry two (bcm) or four (hours) decimals: a
  * total of n rows may differ from the summary's unrounded figure by n half
@@ -88,7 +92,14 @@ typedef struct {
   GArray *dozers;         /* RunDozer */
   GArray *days;           /* RunDay */
   GArray *slices;         /* RunSlice */
+  GArray *reps;           /* RunRep (spread.png only) */
 } RunData;
+
+/* One row of replications.csv: the measures spread.png shows. */
+typedef struct {
+  gboolean complete;
+  double days, bcm_per_calendar_h, strip_m_per_day, coal_t_per_day, cost_per_bcm;
+} RunRep;
 
 static void
 run_dozer_clear (gpointer p)
@@ -108,6 +119,7 @@ run_data_clear (RunData *rd)
   g_clear_pointer (&rd->dozers, g_array_unref);
   g_clear_pointer (&rd->days, g_array_unref);
   g_clear_pointer (&rd->slices, g_array_unref);
+  g_clear_pointer (&rd->reps, g_array_unref);
 }
 
 /* ---- summary.json ------------------------------------------------------------ */
@@ -1065,6 +1077,173 @@ draw_schedule (const RunData *rd, const char *dir, GError **error)
   return finish_page (surf, cr, dir, "schedule.png", error);
 }
 
+/* ---- spread.png: the replications --------------------------------------------- */
+
+static gboolean
+replication_row (RunData *rd, char **f, const char *path, guint line, GError **error)
+{
+  guint index = 0, complete = 0, failures = 0;
+  double cal_h = 0, moved = 0, per_op = 0, per_cal = 0, strip = 0, coal = 0, cost = 0;
+  if (!field_uint (f[0], path, line, "replication", &index, error)
+      || !field_uint (f[1], path, line, "complete", &complete, error)
+      || !field_double (f[2], path, line, "calendar_h", &cal_h, error)
+      || !field_double (f[3], path, line, "moved_bcm", &moved, error)
+      || !field_double (f[4], path, line, "bcm_per_operating_h", &per_op, error)
+      || !field_double (f[5], path, line, "bcm_per_calendar_h", &per_cal, error)
+      || !field_double (f[6], path, line, "strip_m_per_day", &strip, error)
+      || !field_double (f[7], path, line, "coal_t_per_day", &coal, error)
+      || !field_double (f[8], path, line, "cost_per_bcm", &cost, error)
+      || !field_uint (f[9], path, line, "failures", &failures, error))
+    return FALSE;
+  if (index != rd->reps->len)
+    {
+      g_autofree char *want = fmt ("replication %u (rows in order from 0)", rd->reps->len);
+      return field_error (error, path, line, "replication", want, f[0]);
+    }
+  if (complete > 1)
+    return field_error (error, path, line, "complete", "0 or 1", f[1]);
+  RunRep r = { complete == 1, cal_h / 24.0, per_cal, strip, coal, cost };
+  g_array_append_val (rd->reps, r);
+  return TRUE;
+}
+
+static const Rgb RGB_SPREAD_BAR = { 0.337, 0.706, 0.914 };
+static const Rgb RGB_SPREAD_MID = { 0.835, 0.369, 0.000 };
+
+/* One measure over the replications: a histogram, the 10th and 90th
+ * percentiles (dashed) and the median (solid), with their values. */
+static void
+draw_spread_panel (cairo_t *cr, double left, double top, double width, double height,
+                   const double *x, guint n, const char *title, int dec)
+{
+  SfSpread sp;
+  sf_spread (x, n, &sp);
+  /* bins: about the square root of the count, 5 to 20 (common practice,
+   * no source), over the range padded by half a bin */
+  guint k = (guint) CLAMP (ceil (sqrt ((double) n)), 5.0, 20.0);
+  double span = sp.max - sp.min;
+  if (!(span > 0))
+    span = MAX (fabs (sp.max) * 0.01, 1e-6);
+  double bin = span / k;
+  double lo = sp.min - 0.5 * bin, hi = lo + (k + 1) * bin;
+  g_autofree guint *count = g_new0 (guint, k + 1);
+  guint top_count = 0;
+  for (guint i = 0; i < n; i++)
+    {
+      guint b = (guint) CLAMP (floor ((x[i] - lo) / bin), 0.0, (double) k);
+      count[b]++;
+      top_count = MAX (top_count, count[b]);
+    }
+  double ys = sf_chart_tick_step (top_count * 1.25, 5);
+  ys = MAX (ys, 1.0);
+  const Frame f = { left, top + 28, width, height - 28 - 56, lo, hi, 0.0,
+                    ceil (top_count * 1.25 / ys - 1e-9) * ys };
+  set_rgb (cr, &RGB_TEXT);
+  font (cr, 15, TRUE);
+  text_at (cr, left, top, 0.0, 0.0, title);
+  draw_axes (cr, &f, " ", "replications", 6, 5);
+  cairo_save (cr);
+  clip_frame (cr, &f);
+  set_rgba (cr, &RGB_SPREAD_BAR, 0.9);
+  for (guint b = 0; b <= k; b++)
+    if (count[b])
+      {
+        double u0 = px (&f, lo + b * bin) + 1, u1 = px (&f, lo + (b + 1) * bin) - 1;
+        double v = py (&f, count[b]);
+        cairo_rectangle (cr, u0, v, MAX (u1 - u0, 1.0), f.top + f.height - v);
+      }
+  cairo_fill (cr);
+  /* the percentiles */
+  const double q[3] = { sp.p10, sp.p50, sp.p90 };
+  const char *name[3] = { "p10", "p50", "p90" };
+  cairo_set_line_width (cr, 2.0);
+  set_rgb (cr, &RGB_SPREAD_MID);
+  for (int i = 0; i < 3; i++)
+    {
+      double dash[] = { 6.0, 4.0 };
+      cairo_set_dash (cr, dash, i == 1 ? 0 : 2, 0);
+      double u = floor (px (&f, q[i])) + 0.5;
+      cairo_move_to (cr, u, f.top);
+      cairo_line_to (cr, u, f.top + f.height);
+      cairo_stroke (cr);
+    }
+  cairo_set_dash (cr, NULL, 0, 0);
+  font (cr, 12, FALSE);
+  for (int i = 0; i < 3; i++)
+    {
+      g_autofree char *v = fmt ("%.*f", dec, q[i]);
+      g_autofree char *s = fmt ("%s %s", name[i], v);
+      double u = px (&f, q[i]), w = text_width (cr, s);
+      /* p10 to the left of its line, p90 to the right, p50 on top; each
+       * turned to the other side when the frame's edge is in the way */
+      double ha = i == 0 ? 1.0 : i == 2 ? 0.0 : 0.5;
+      if (i == 0 && u - 4 - w < f.left)
+        ha = 0.0;
+      else if (i == 2 && u + 4 + w > f.left + f.width)
+        ha = 1.0;
+      else if (i == 1)
+        ha = CLAMP ((u - f.left) / f.width, 0.0, 1.0) < 0.1 ? 0.0
+             : (u - f.left) / f.width > 0.9            ? 1.0
+                                                        : 0.5;
+      double du = ha == 1.0 ? -4.0 : ha == 0.0 ? 4.0 : 0.0;
+      halo_text (cr, u + du, f.top + 4 + (i == 1 ? 0 : 16), ha, 0.0, s);
+    }
+  cairo_restore (cr);
+  draw_frame_box (cr, &f);
+  /* the numbers under the panel */
+  g_autofree char *mean = fmt ("%.*f", dec, sp.mean);
+  g_autofree char *sd = fmt ("%.*f", dec, sp.sd);
+  g_autofree char *mn = fmt ("%.*f", dec, sp.min);
+  g_autofree char *mx = fmt ("%.*f", dec, sp.max);
+  g_autofree char *line = fmt ("mean %s, sd %s, min %s, max %s", mean, sd, mn, mx);
+  font (cr, 13, FALSE);
+  cairo_set_source_rgb (cr, 0.3, 0.3, 0.3);
+  text_at (cr, left + 0.5 * width, f.top + f.height + 26, 0.5, 0.0, line);
+}
+
+static gboolean
+draw_spread (const RunData *rd, const char *dir, GError **error)
+{
+  const int W = SF_CHART_RUN_WIDTH_PX, H = SF_CHART_SPREAD_HEIGHT_PX;
+  const guint n = rd->reps->len;
+  cairo_t *cr;
+  cairo_surface_t *surf = page_new (W, H, &cr);
+  guint incomplete = 0;
+  for (guint i = 0; i < n; i++)
+    incomplete += !g_array_index (rd->reps, RunRep, i).complete;
+  g_autofree char *title = fmt ("Spread over %u replications  -  scenario '%s'", n, rd->scenario);
+  g_autofree char *subtitle
+    = fmt ("each replication with its own random streams (breakdowns, repairs, weather); "
+           "%u of %u stopped short of the end; replication 0's files are the others in "
+           "this folder",
+           incomplete, n);
+  page_titles (cr, title, subtitle);
+  gboolean coal = FALSE;
+  for (guint i = 0; i < n; i++)
+    coal = coal || g_array_index (rd->reps, RunRep, i).coal_t_per_day > 0;
+  g_autofree double *x = g_new (double, n);
+  static const char *const titles[] = { "Days to finish the strip", "bcm per calendar hour",
+                                        "coal t per day", "strip m per day", "cost per bcm" };
+  static const int decimals[] = { 2, 0, 0, 1, 3 };
+  const int measures[4] = { 0, 1, coal ? 2 : 3, 4 };
+  const double pw = (W - 2 * 92.0 - 80) / 2, ph = (H - 90 - 60) / 2.0;
+  for (int m = 0; m < 4; m++)
+    {
+      for (guint i = 0; i < n; i++)
+        {
+          const RunRep *r = &g_array_index (rd->reps, RunRep, i);
+          const double v[5] = { r->days, r->bcm_per_calendar_h, r->coal_t_per_day,
+                                r->strip_m_per_day, r->cost_per_bcm };
+          x[i] = v[measures[m]];
+        }
+      double left = 92 + (m % 2) * (pw + 120);
+      double top = 84 + (m / 2) * ph;
+      draw_spread_panel (cr, left, top, pw, ph, x, n, titles[measures[m]], decimals[measures[m]]);
+    }
+  run_footer (cr, rd, W, H);
+  return finish_page (surf, cr, dir, "spread.png", error);
+}
+
 /* ---- entry point ---------------------------------------------------------------- */
 
 gboolean
@@ -1074,6 +1253,27 @@ sf_chart_run_outputs (const char *out_dir, GError **error)
   RunData rd = { 0 };
   gboolean ok = run_data_read (&rd, out_dir, error) && draw_daily (&rd, out_dir, error)
                 && draw_usage (&rd, out_dir, error) && draw_schedule (&rd, out_dir, error);
+  run_data_clear (&rd);
+  return ok;
+}
+
+gboolean
+sf_chart_run_spread (const char *out_dir, GError **error)
+{
+  g_return_val_if_fail (out_dir != NULL, FALSE);
+  RunData rd = { 0 };
+  rd.dozers = g_array_new (FALSE, TRUE, sizeof (RunDozer));
+  g_array_set_clear_func (rd.dozers, run_dozer_clear);
+  rd.reps = g_array_new (FALSE, TRUE, sizeof (RunRep));
+  g_autofree char *path = g_build_filename (out_dir, "replications.csv", NULL);
+  gboolean ok = read_summary (&rd, out_dir, error)
+                && read_csv (&rd, path, REPLICATIONS_HEADER, REPLICATIONS_FIELDS, replication_row,
+                             error);
+  if (ok && rd.reps->len < 2)
+    ok = input_error (error, SF_SCENARIO_ERROR_INVALID,
+                      "%s line %u: expected a row per replication, at least 2, found %u", path,
+                      rd.reps->len + 2, rd.reps->len);
+  ok = ok && draw_spread (&rd, out_dir, error);
   run_data_clear (&rd);
   return ok;
 }

@@ -1507,13 +1507,15 @@ run_set (const SfScenario *sc, const SfRunOptions *opt, guint first, guint n, gu
   if (ok && od && opt->charts)
     {
       g_autoptr (GError) cerr = NULL;
-      sums[0].charts_drawn = sf_chart_run_outputs (job.write_dir, &cerr);
+      sums[0].charts_drawn = sf_chart_run_outputs (job.write_dir, &cerr)
+                             && (n < 2 || sf_chart_run_spread (job.write_dir, &cerr));
       if (!sums[0].charts_drawn)
         {
           g_autofree char *m = sf_outdir_shown (od, cerr->message);
           g_string_append_printf (notice, "charts not drawn: %s", m);
           /* no chart of this run's set rather than some */
-          static const char *const pngs[] = { "daily.png", "usage.png", "schedule.png" };
+          static const char *const pngs[] = { "daily.png", "usage.png", "schedule.png",
+                                              "spread.png" };
           for (gsize i = 0; i < G_N_ELEMENTS (pngs); i++)
             {
               g_autofree char *p = g_build_filename (job.write_dir, pngs[i], NULL);

@@ -22,7 +22,7 @@
 
 const char *const sf_outdir_names[] = { "events.log",  "schedule.csv", "daily.csv",
                                         "replications.csv", "daily.png", "usage.png",
-                                        "schedule.png", "summary.json", NULL };
+                                        "schedule.png", "spread.png", "summary.json", NULL };
 
 #define STAGING_TAG "staging-"
 /* NAME_MAX less ".", ".staging-" and the six random characters */

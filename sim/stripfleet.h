@@ -191,7 +191,8 @@ typedef struct {
                                thousand events and fails with SF_MODEL_ERROR_INTERRUPTED,
                                writing nothing (the previous outputs stay as they were) */
   gboolean charts;          /* also draw daily.png, usage.png and schedule.png into out_dir
-                               (sf_chart_run_outputs); a chart that cannot be drawn is a
+                               (sf_chart_run_outputs), and spread.png with replications
+                               (sf_chart_run_spread); a chart that cannot be drawn is a
                                notice, not a failure */
   int operators;            /* > 0: operators in every crew (dozers beyond stand unmanned);
                                <= 0: the scenario's, scaled with n_dozers */
@@ -312,6 +313,14 @@ gboolean sf_study_chart_lane (const SfScenario *sc, guint block, guint lane, gui
  * was built without cairo.  The charts carry the scenario's name and the
  * planning-estimate caution; the same files give byte-identical charts. */
 gboolean sf_chart_run_outputs (const char *out_dir, GError **error);
+
+/* Draws spread.png from out_dir/replications.csv (and summary.json for the
+ * scenario's name): for the days to finish, bcm per calendar hour, coal t
+ * (or strip m) per day and cost per bcm, a histogram over the replications
+ * with the 10th, 50th and 90th percentiles.  The reader is as strict as
+ * sf_chart_run_outputs' (file and line in every message); fewer than two
+ * replications is an error.  Same errors otherwise. */
+gboolean sf_chart_run_spread (const char *out_dir, GError **error);
 
 /* ---- replay: a finished run read back from its events.log, for display ------ */
 

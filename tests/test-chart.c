@@ -395,6 +395,65 @@ test_run_charts (void **state)
   remove_dir (dir);
 }
 
+/* The spread chart of replications: drawn into the run's set with
+ * SfRunOptions.charts (a valid PNG of the promised size, not blank: ISO/IEC
+ * 15948 signature read back by cairo), byte for byte the same when drawn
+ * again (project rule: deterministic outputs); a replications.csv whose
+ * rows are out of order, or with one replication only, is refused naming
+ * the file and line, and no spread.png is written (stripfleet.h). */
+static void
+test_spread_chart (void **state)
+{
+  (void) state;
+  g_autoptr (SfScenario) sc = demo ();
+  g_autofree char *dir = g_dir_make_tmp ("sf-chart-spread-XXXXXX", NULL);
+  SfRunOptions o = SF_RUN_OPTIONS_INIT;
+  o.out_dir = dir;
+  o.only_block = 3;
+  o.n_dozers = 3;
+  o.charts = TRUE;
+  SfRunSummary sums[5];
+  g_autoptr (GError) err = NULL;
+  if (!sf_run_replications (sc, &o, G_N_ELEMENTS (sums), 2, sums, &err))
+    fail_msg ("%s", err->message);
+  assert_true (sums[0].charts_drawn);
+  assert_null (sums[0].notice);
+  for (gsize r = 0; r < G_N_ELEMENTS (sums); r++)
+    sf_run_summary_clear (&sums[r]);
+  g_autofree char *path = g_build_filename (dir, "spread.png", NULL);
+  check_png_ink (path, SF_CHART_RUN_WIDTH_PX, SF_CHART_SPREAD_HEIGHT_PX, 0.03, 0.005);
+  gsize len1 = 0, len2 = 0;
+  g_autofree char *first = file_text (dir, "spread.png", &len1);
+  assert_true (sf_chart_run_spread (dir, &err));
+  g_autofree char *second = file_text (dir, "spread.png", &len2);
+  assert_int_equal (len1, len2);
+  assert_memory_equal (first, second, len1);
+
+  /* damaged replications.csv: rows out of order, then a single row */
+  g_autofree char *csv = file_text (dir, "replications.csv", NULL);
+  g_auto (GStrv) lines = g_strsplit (csv, "\n", -1);
+  g_autofree char *swapped = g_strdup_printf ("%s\n%s\n%s\n", lines[0], lines[2], lines[1]);
+  g_autofree char *single = g_strdup_printf ("%s\n%s\n", lines[0], lines[1]);
+  g_autofree char *csv_path = g_build_filename (dir, "replications.csv", NULL);
+  const struct {
+    const char *text, *want;
+  } bad[] = {
+    { swapped, "replications.csv line 2: replication: expected replication 0" },
+    { single, "replications.csv line 3: expected a row per replication, at least 2, found 1" },
+  };
+  for (gsize i = 0; i < G_N_ELEMENTS (bad); i++)
+    {
+      g_unlink (path);
+      put_file (dir, "replications.csv", bad[i].text);
+      g_clear_error (&err);
+      assert_false (sf_chart_run_spread (dir, &err));
+      if (!strstr (err->message, bad[i].want) || !strstr (err->message, csv_path))
+        fail_msg ("expected '%s' naming %s, got: %s", bad[i].want, csv_path, err->message);
+      assert_false (g_file_test (path, G_FILE_TEST_EXISTS));
+    }
+  remove_dir (dir);
+}
+
 /* No chart in the folder (stripfleet.h: inputs are checked before anything
  * is drawn). */
 static void
@@ -557,6 +616,9 @@ test_without_cairo (void **state)
   assert_false (sf_chart_run_outputs (dir, &err));
   assert_true (err->domain == G_FILE_ERROR && err->code == G_FILE_ERROR_NOSYS);
   assert_non_null (strstr (err->message, "built without cairo"));
+  g_clear_error (&err);
+  assert_false (sf_chart_run_spread (dir, &err));
+  assert_non_null (strstr (err->message, "built without cairo"));
   g_autoptr (GPtrArray) names = dir_entries (dir);
   assert_int_equal (names->len, 0);
   remove_dir (dir);
@@ -578,6 +640,7 @@ main (void)
     cmocka_unit_test (test_run_charts),
     cmocka_unit_test (test_run_charts_bad_daily),
     cmocka_unit_test (test_run_charts_bad_other),
+    cmocka_unit_test (test_spread_chart),
 #else
     cmocka_unit_test (test_without_cairo),
 #endif

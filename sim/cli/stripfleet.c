@@ -590,7 +590,8 @@ verb_run (int argc, char **argv)
     }
   print_run_summary (sc, &sums[0], out);
   if (sums[0].charts_drawn)
-    printf ("  charts: daily.png, usage.png, schedule.png\n");
+    printf ("  charts: daily.png, usage.png, schedule.png%s\n",
+            replications > 1 ? ", spread.png" : "");
   if (sums[0].notice)
     {
       /* one warning line per line of the notice */
