@@ -54,3 +54,17 @@ sf_chart_run_spread (const char *out_dir, GError **error)
 {
   return sf_chart_run_outputs (out_dir, error);
 }
+
+gboolean
+sf_study_chart_compare (const SfScenario *sc, const SfCompareResult *rows, guint n,
+                        guint class_strategy, guint class_a, guint class_b,
+                        const char *png_path, GError **error)
+{
+  (void) sc;
+  (void) rows;
+  (void) n;
+  (void) class_strategy;
+  (void) class_a;
+  (void) class_b;
+  return no_charts (png_path, error);
+}

@@ -6,6 +6,7 @@
  * wiring itself (SfStudyBlock, sf-study.h) is shared with the charts.
  */
 #include <math.h>
+#include <string.h>
 
 #include "sf-study.h"
 
@@ -71,6 +72,57 @@ sf_study_slice_plan (const SfScenario *sc, guint block, const SfStudyOptions *op
       g_array_append_val (out, info);
     }
   return out;
+}
+
+gboolean
+sf_study_compare (const SfScenario *sc, guint block, guint class_strategy, guint class_a,
+                  guint class_b, SfCompareResult *out, GError **error)
+{
+  g_return_val_if_fail (sc != NULL && out != NULL, FALSE);
+  memset (out, 0, sizeof *out);
+  out->block = block;
+  /* the strategy changes the slices, not the section: one section, three
+   * plans' worth of designs */
+  SfStudyOptions layers = SF_STUDY_OPTIONS_INIT, straight = SF_STUDY_OPTIONS_INIT;
+  layers.strategy = 0;
+  straight.strategy = 1;
+  g_autoptr (SfStudyBlock) sl = sf_study_block_new (sc, block, &layers, error);
+  if (!sl)
+    return FALSE;
+  SfStudyBlock ss = { sl->design, sl->section, NULL }, sd = ss;
+  design_with_options (sc, &straight, &ss.design);
+  design_with_options (sc, NULL, &sd.design);
+  g_autoptr (SfSlicePlan) ps = sf_slice_plan_new (sl->section, &ss.design, sc->strip.lane_width_m,
+                                                  error);
+  g_autoptr (SfSlicePlan) pd = ps ? sf_slice_plan_new (sl->section, &sd.design,
+                                                       sc->strip.lane_width_m, error)
+                                  : NULL;
+  if (!pd)
+    return FALSE;
+  ss.plan = ps;
+  sd.plan = pd;
+  const struct {
+    const SfStudyBlock *sb;
+    guint cls;
+    SfLaneTotals *t;
+  } cases[4] = { { sl, class_strategy, &out->layers }, { &ss, class_strategy, &out->straight },
+                 { &sd, class_a, &out->blade_a }, { &sd, class_b, &out->blade_b } };
+  for (int i = 0; i < 4; i++)
+    {
+      g_autoptr (GArray) res = g_array_new (FALSE, TRUE, sizeof (SfSliceResult));
+      g_autoptr (SfLane) ln = sf_study_block_work_lane (sc, cases[i].sb, 0, cases[i].cls, res,
+                                                        cases[i].t, error);
+      if (!ln)
+        return FALSE;
+    }
+  const SfLaneTotals *tl = &out->layers, *ts = &out->straight;
+  out->straight_gain_gross_pct = 100.0 * (ts->bcm_per_operating_h / tl->bcm_per_operating_h - 1.0);
+  /* net: only what left the dozing zone for good counts */
+  out->straight_gain_net_pct
+    = 100.0 * ((ts->uncovered_bcm / ts->operating_h) / (tl->uncovered_bcm / tl->operating_h) - 1.0);
+  out->blade_gain_pct
+    = 100.0 * (out->blade_a.bcm_per_operating_h / out->blade_b.bcm_per_operating_h - 1.0);
+  return TRUE;
 }
 
 gboolean

@@ -134,6 +134,25 @@ typedef struct {
 GArray *sf_study_slice_plan (const SfScenario *sc, guint block, const SfStudyOptions *opt,
                              GError **error);
 
+/* The comparisons of `stripfleet compare` on lane 0 of one block. */
+typedef struct {
+  guint block;
+  SfLaneTotals layers;      /* class_strategy, tip-over and layer slices */
+  SfLaneTotals straight;    /* class_strategy, straight pushes */
+  SfLaneTotals blade_a;     /* class_a, the scenario's slices */
+  SfLaneTotals blade_b;     /* class_b, the scenario's slices */
+  double straight_gain_gross_pct; /* bcm dumped per operating hour, straight over layers */
+  double straight_gain_net_pct;   /* bcm uncovered per operating hour, straight over layers */
+  double blade_gain_pct;          /* bcm dumped per operating hour, class_a over class_b */
+} SfCompareResult;
+
+/* Pushes lane 0 of `block` out four times — class_strategy with tip-over and
+ * layer slices and with straight pushes, then class_a and class_b with the
+ * scenario's slices — on one laid-out section, and fills *out.  The same
+ * numbers as four sf_study_push_lane() calls. */
+gboolean sf_study_compare (const SfScenario *sc, guint block, guint class_strategy,
+                           guint class_a, guint class_b, SfCompareResult *out, GError **error);
+
 /* Lays out every block of the scenario as a run would (its section settled
  * at the angle of repose, its design and slice plan), building the given
  * sections once.  FALSE when any block cannot be laid out: one error whose
@@ -275,6 +294,14 @@ typedef struct {
 void sf_spread (const double *x, guint n, SfSpread *out);
 
 /* ---- charts: the block studies and fleet runs as PNG pictures -------------- */
+
+/* Draws the gains of `n` compare results (blocks in order) as a PNG: per
+ * block the net gain of straight pushes and the gain of class_a over class_b
+ * as bars, with the trade's rules of thumb as shaded bands (+10 to +15 %,
+ * +20 to +25 %: common practice, no source).  Written atomically. */
+gboolean sf_study_chart_compare (const SfScenario *sc, const SfCompareResult *rows, guint n,
+                                 guint class_strategy, guint class_a, guint class_b,
+                                 const char *png_path, GError **error);
 
 /* Draws the cross-section of `block` under `opt` (may be NULL) with its
  * slice plan — post-blast surface, natural surface level, base, coal roof,

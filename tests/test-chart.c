@@ -454,6 +454,38 @@ test_spread_chart (void **state)
   remove_dir (dir);
 }
 
+/* The compare chart of three blocks: a valid PNG of the promised size, not
+ * blank, byte for byte the same when drawn again (deterministic outputs);
+ * no block to draw is an argument error. */
+static void
+test_compare_chart (void **state)
+{
+  (void) state;
+  g_autoptr (SfScenario) sc = demo ();
+  int ku = sf_scenario_find_class (sc, "u-blade-100t");
+  int kc = sf_scenario_find_class (sc, "carry-blade-100t");
+  SfCompareResult rows[3];
+  g_autoptr (GError) err = NULL;
+  for (guint b = 0; b < 3; b++)
+    if (!sf_study_compare (sc, 9 + b, (guint) ku, (guint) kc, (guint) ku, &rows[b], &err))
+      fail_msg ("%s", err->message);
+  g_autofree char *dir = g_dir_make_tmp ("sf-chart-cmp-XXXXXX", NULL);
+  g_autofree char *path = g_build_filename (dir, "compare.png", NULL);
+  assert_true (sf_study_chart_compare (sc, rows, 3, (guint) ku, (guint) kc, (guint) ku, path,
+                                       &err));
+  check_png_ink (path, SF_CHART_COMPARE_WIDTH_PX, SF_CHART_COMPARE_HEIGHT_PX, 0.03, 0.005);
+  gsize len1 = 0, len2 = 0;
+  g_autofree char *first = file_text (dir, "compare.png", &len1);
+  assert_true (sf_study_chart_compare (sc, rows, 3, (guint) ku, (guint) kc, (guint) ku, path,
+                                       &err));
+  g_autofree char *second = file_text (dir, "compare.png", &len2);
+  assert_int_equal (len1, len2);
+  assert_memory_equal (first, second, len1);
+  assert_false (sf_study_chart_compare (sc, rows, 0, 0, 0, 0, path, &err));
+  assert_true (err->domain == SF_MODEL_ERROR && err->code == SF_MODEL_ERROR_ARGUMENT);
+  remove_dir (dir);
+}
+
 /* No chart in the folder (stripfleet.h: inputs are checked before anything
  * is drawn). */
 static void
@@ -641,6 +673,7 @@ main (void)
     cmocka_unit_test (test_run_charts_bad_daily),
     cmocka_unit_test (test_run_charts_bad_other),
     cmocka_unit_test (test_spread_chart),
+    cmocka_unit_test (test_compare_chart),
 #else
     cmocka_unit_test (test_without_cairo),
 #endif

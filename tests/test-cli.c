@@ -313,6 +313,16 @@ test_studies_demo (void **state)
     assert_contains (r.out, "Planning estimate only");
   }
   {
+    /* every block of the two-block scenario, with the chart */
+    g_autofree char *png = g_build_filename (f->dir, "compare.png", NULL);
+    g_auto (CliResult) r = cli_run ("compare", "--all-blocks", "--chart", png, f->small);
+    assert_int_equal (r.status, SF_EXIT_OK);
+    assert_contains (r.out, "All 2 blocks of 'demo-strip-small'");
+    assert_contains (r.out, "straight pushes, net:");
+    assert_contains (r.out, "chart written to");
+    assert_true (g_file_test (png, G_FILE_TEST_IS_REGULAR));
+  }
+  {
     /* a block the strip does not have: invalid input for this scenario */
     g_auto (CliResult) r = cli_run ("plan", "--block", "30", f->demo);
     assert_int_equal (r.status, SF_EXIT_INVALID);

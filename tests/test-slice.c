@@ -183,6 +183,48 @@ test_carry_blade_gain (void **state)
     }
 }
 
+/* sf_study_compare gives the four lane studies of `stripfleet compare` on
+ * one laid-out section: the same numbers as four separate sf_study_push_lane
+ * calls, to the last bit (analytic: the same computation), and gains that
+ * follow from them; on block 10 of the invented demo the figures of
+ * docs/validation.md §8 (+15.9 % net for straight pushes, +33.1 % for the
+ * carry blade). */
+static void
+test_compare_matches_studies (void **state)
+{
+  (void) state;
+  g_autoptr (SfScenario) sc = demo ();
+  int ku = sf_scenario_find_class (sc, "u-blade-100t");
+  int kc = sf_scenario_find_class (sc, "carry-blade-100t");
+  SfCompareResult r;
+  g_autoptr (GError) err = NULL;
+  assert_true (sf_study_compare (sc, 10, (guint) ku, (guint) kc, (guint) ku, &r, &err));
+  SfStudyOptions layers = SF_STUDY_OPTIONS_INIT, straight = SF_STUDY_OPTIONS_INIT;
+  layers.strategy = 0;
+  straight.strategy = 1;
+  SfLaneTotals t[4];
+  g_autoptr (GArray) a = sf_study_push_lane (sc, 10, 0, (guint) ku, &layers, &t[0], &err);
+  g_autoptr (GArray) b = sf_study_push_lane (sc, 10, 0, (guint) ku, &straight, &t[1], &err);
+  g_autoptr (GArray) c = sf_study_push_lane (sc, 10, 0, (guint) kc, NULL, &t[2], &err);
+  g_autoptr (GArray) d = sf_study_push_lane (sc, 10, 0, (guint) ku, NULL, &t[3], &err);
+  assert_true (a && b && c && d);
+  const SfLaneTotals *got[4] = { &r.layers, &r.straight, &r.blade_a, &r.blade_b };
+  for (int i = 0; i < 4; i++)
+    {
+      assert_int_equal (got[i]->pushes, t[i].pushes);
+      sf_assert_close (got[i]->moved_bcm, t[i].moved_bcm, 0, 0);
+      sf_assert_close (got[i]->uncovered_bcm, t[i].uncovered_bcm, 0, 0);
+      sf_assert_close (got[i]->operating_h, t[i].operating_h, 0, 0);
+      sf_assert_close (got[i]->rehandled_bcm, t[i].rehandled_bcm, 0, 0);
+    }
+  sf_assert_close (r.straight_gain_net_pct, 100.0 * (net_rate (&t[1]) / net_rate (&t[0]) - 1.0),
+                   1e-12, 0);
+  sf_assert_close (r.blade_gain_pct,
+                   100.0 * (t[2].bcm_per_operating_h / t[3].bcm_per_operating_h - 1.0), 1e-12, 0);
+  sf_assert_close (r.straight_gain_net_pct, 15.9, 0.05, 0);
+  sf_assert_close (r.blade_gain_pct, 33.1, 0.05, 0);
+}
+
 /* Production falls as push distance grows within a slice: the last pushes
  * of a layer are longer than the first (the face retreats towards the
  * highwall; textbook production curves fall with distance, Peurifoy et al.
@@ -237,6 +279,7 @@ main (void)
     cmocka_unit_test (test_plan_volumes),
     cmocka_unit_test (test_straight_push_gain),
     cmocka_unit_test (test_carry_blade_gain),
+    cmocka_unit_test (test_compare_matches_studies),
     cmocka_unit_test (test_push_distance_grows_in_a_slice),
   };
   return cmocka_run_group_tests_name ("slice", tests, NULL, NULL);

@@ -333,6 +333,8 @@ verb_lane (int argc, char **argv)
 static int
 verb_compare (int argc, char **argv)
 {
+  static gboolean all_blocks = FALSE;
+  g_autofree char *chart = NULL;
   g_autoptr (GOptionContext) ctx = g_option_context_new (
     "SCENARIO - production gains of straight pushes and of a carry blade");
   GOptionEntry entries[] = {
@@ -343,6 +345,10 @@ verb_compare (int argc, char **argv)
       "First side of the blade comparison (default: the first carry-blade class)", "NAME" },
     { "against", 'a', 0, G_OPTION_ARG_STRING, &opt_against,
       "Other side of the blade comparison (default: the first U-blade class)", "NAME" },
+    { "all-blocks", 0, 0, G_OPTION_ARG_NONE, &all_blocks,
+      "Compare on every block of the strip (one line each) instead of --block", NULL },
+    { "chart", 0, 0, G_OPTION_ARG_FILENAME, &chart,
+      "Also draw the gains per block as a PNG chart", "FILE.png" },
     G_OPTION_ENTRY_NULL
   };
   g_option_context_set_summary (
@@ -365,44 +371,103 @@ verb_compare (int argc, char **argv)
                 opt_block);
   if (ks < 0 || ka < 0 || kb < 0 || opt_block < 0)
     return SF_EXIT_USAGE;
-  g_autoptr (GError) err = NULL;
-  SfStudyOptions layers = SF_STUDY_OPTIONS_INIT, straight = SF_STUDY_OPTIONS_INIT;
-  layers.strategy = 0;
-  straight.strategy = 1;
-  SfLaneTotals tl, ts, ta, tb;
-  g_autoptr (GArray) rl = sf_study_push_lane (sc, (guint) opt_block, 0, (guint) ks, &layers, &tl, &err);
-  g_autoptr (GArray) rs = rl ? sf_study_push_lane (sc, (guint) opt_block, 0, (guint) ks, &straight, &ts, &err) : NULL;
-  g_autoptr (GArray) ra = rs ? sf_study_push_lane (sc, (guint) opt_block, 0, (guint) ka, NULL, &ta, &err) : NULL;
-  g_autoptr (GArray) rb = ra ? sf_study_push_lane (sc, (guint) opt_block, 0, (guint) kb, NULL, &tb, &err) : NULL;
-  if (!rb)
+  const guint n_blocks = sf_scenario_get_n_blocks (sc);
+  if (!all_blocks && (guint) opt_block >= n_blocks)
     {
-      g_printerr ("%s: %s\n", argv[1], err->message);
+      g_printerr ("%s: block %d does not exist: the strip has blocks 0 to %u\n", argv[1],
+                  opt_block, n_blocks - 1);
       return SF_EXIT_INVALID;
     }
-  printf ("Block %d of '%s', lane 0; strategies with one %s dozer\n\n", opt_block,
-          sf_scenario_get_name (sc), sf_scenario_get_class_name (sc, (guint) ks));
-  printf ("%-22s %10s %10s %10s %10s %12s %12s\n", "case", "dumped_bcm", "rehdl_bcm",
-          "uncov_bcm", "op_h", "gross/op_h", "uncov/op_h");
-  const SfLaneTotals *tt[2] = { &tl, &ts };
-  const char *names[2] = { "tip-over + layers", "straight push" };
-  for (int i = 0; i < 2; i++)
-    printf ("%-22s %10.1f %10.1f %10.1f %10.2f %12.1f %12.1f\n", names[i], tt[i]->moved_bcm,
-            tt[i]->rehandled_bcm, tt[i]->uncovered_bcm, tt[i]->operating_h,
-            tt[i]->bcm_per_operating_h, tt[i]->uncovered_bcm / tt[i]->operating_h);
-  double gain_s = 100.0 * (ts.bcm_per_operating_h / tl.bcm_per_operating_h - 1.0);
-  /* Net: only what left the dozing zone for good counts. */
-  double gain_sn = 100.0 * ((ts.uncovered_bcm / ts.operating_h) / (tl.uncovered_bcm / tl.operating_h) - 1.0);
-  printf ("  gain of straight pushes: %+.1f %% gross, %+.1f %% net (uncovered per operating hour; "
-          "rule of thumb about +10 to +15 %% net: common practice, no source)\n\n",
-          gain_s, gain_sn);
-  printf ("%-38s %10.1f %10.2f %10.1f\n", sf_scenario_get_class_name (sc, (guint) ka),
-          ta.moved_bcm, ta.operating_h, ta.bcm_per_operating_h);
-  printf ("%-38s %10.1f %10.2f %10.1f\n", sf_scenario_get_class_name (sc, (guint) kb),
-          tb.moved_bcm, tb.operating_h, tb.bcm_per_operating_h);
-  printf ("  gain of %s over %s: %+.1f %% (for a carry blade over a U blade the rule of thumb "
-          "is +20 to +25 %%: common practice, no source)\n",
-          sf_scenario_get_class_name (sc, (guint) ka), sf_scenario_get_class_name (sc, (guint) kb),
-          100.0 * (ta.bcm_per_operating_h / tb.bcm_per_operating_h - 1.0));
+  const guint first = all_blocks ? 0 : (guint) opt_block;
+  const guint last = all_blocks ? n_blocks - 1 : (guint) opt_block;
+  g_autoptr (GArray) rows = g_array_new (FALSE, TRUE, sizeof (SfCompareResult));
+  const gboolean tty = isatty (2);
+  for (guint b = first; b <= last; b++)
+    {
+      if (all_blocks && tty)
+        g_printerr ("\r  block %u of %u", b + 1, n_blocks);
+      g_autoptr (GError) err = NULL;
+      SfCompareResult r;
+      if (!sf_study_compare (sc, b, (guint) ks, (guint) ka, (guint) kb, &r, &err))
+        {
+          if (all_blocks && tty)
+            g_printerr ("\n");
+          g_printerr ("%s: %s\n", argv[1], err->message);
+          return SF_EXIT_INVALID;
+        }
+      g_array_append_val (rows, r);
+    }
+  if (all_blocks && tty)
+    g_printerr ("\r%-30s\r", "");
+  const char *name_s = sf_scenario_get_class_name (sc, (guint) ks);
+  const char *name_a = sf_scenario_get_class_name (sc, (guint) ka);
+  const char *name_b = sf_scenario_get_class_name (sc, (guint) kb);
+  if (!all_blocks)
+    {
+      const SfCompareResult *r = &g_array_index (rows, SfCompareResult, 0);
+      printf ("Block %d of '%s', lane 0; strategies with one %s dozer\n\n", opt_block,
+              sf_scenario_get_name (sc), name_s);
+      printf ("%-22s %10s %10s %10s %10s %12s %12s\n", "case", "dumped_bcm", "rehdl_bcm",
+              "uncov_bcm", "op_h", "gross/op_h", "uncov/op_h");
+      const SfLaneTotals *tt[2] = { &r->layers, &r->straight };
+      const char *names[2] = { "tip-over + layers", "straight push" };
+      for (int i = 0; i < 2; i++)
+        printf ("%-22s %10.1f %10.1f %10.1f %10.2f %12.1f %12.1f\n", names[i], tt[i]->moved_bcm,
+                tt[i]->rehandled_bcm, tt[i]->uncovered_bcm, tt[i]->operating_h,
+                tt[i]->bcm_per_operating_h, tt[i]->uncovered_bcm / tt[i]->operating_h);
+      printf ("  gain of straight pushes: %+.1f %% gross, %+.1f %% net (uncovered per operating "
+              "hour; rule of thumb about +10 to +15 %% net: common practice, no source)\n\n",
+              r->straight_gain_gross_pct, r->straight_gain_net_pct);
+      printf ("%-38s %10.1f %10.2f %10.1f\n", name_a, r->blade_a.moved_bcm,
+              r->blade_a.operating_h, r->blade_a.bcm_per_operating_h);
+      printf ("%-38s %10.1f %10.2f %10.1f\n", name_b, r->blade_b.moved_bcm,
+              r->blade_b.operating_h, r->blade_b.bcm_per_operating_h);
+      printf ("  gain of %s over %s: %+.1f %% (for a carry blade over a U blade the rule of "
+              "thumb is +20 to +25 %%: common practice, no source)\n",
+              name_a, name_b, r->blade_gain_pct);
+    }
+  else
+    {
+      printf ("All %u blocks of '%s', lane 0 of each; strategies with one %s dozer; %s over %s\n\n",
+              n_blocks, sf_scenario_get_name (sc), name_s, name_a, name_b);
+      printf ("%5s %12s %12s %10s %10s %12s %12s %10s\n", "block", "layers/op_h",
+              "straight/op_h", "gain_gross", "gain_net", "a bcm/op_h", "b bcm/op_h", "gain_a_b");
+      double s_min = G_MAXDOUBLE, s_max = -G_MAXDOUBLE, s_sum = 0;
+      double b_min = G_MAXDOUBLE, b_max = -G_MAXDOUBLE, b_sum = 0;
+      for (guint i = 0; i < rows->len; i++)
+        {
+          const SfCompareResult *r = &g_array_index (rows, SfCompareResult, i);
+          printf ("%5u %12.1f %12.1f %+9.1f%% %+9.1f%% %12.1f %12.1f %+9.1f%%\n", r->block,
+                  r->layers.uncovered_bcm / r->layers.operating_h,
+                  r->straight.uncovered_bcm / r->straight.operating_h, r->straight_gain_gross_pct,
+                  r->straight_gain_net_pct, r->blade_a.bcm_per_operating_h,
+                  r->blade_b.bcm_per_operating_h, r->blade_gain_pct);
+          s_min = MIN (s_min, r->straight_gain_net_pct);
+          s_max = MAX (s_max, r->straight_gain_net_pct);
+          s_sum += r->straight_gain_net_pct;
+          b_min = MIN (b_min, r->blade_gain_pct);
+          b_max = MAX (b_max, r->blade_gain_pct);
+          b_sum += r->blade_gain_pct;
+        }
+      printf ("  (rates of layers and straight pushes are net: bcm uncovered per operating hour)\n");
+      printf ("  straight pushes, net: %+.1f to %+.1f %%, mean %+.1f %% (rule of thumb +10 to "
+              "+15 %%: common practice, no source)\n",
+              s_min, s_max, s_sum / rows->len);
+      printf ("  %s over %s: %+.1f to %+.1f %%, mean %+.1f %% (carry over U blade: +20 to +25 "
+              "%%, common practice, no source)\n",
+              name_a, name_b, b_min, b_max, b_sum / rows->len);
+    }
+  if (chart)
+    {
+      g_autoptr (GError) err = NULL;
+      if (!sf_study_chart_compare (sc, (const SfCompareResult *) (void *) rows->data, rows->len,
+                                   (guint) ks, (guint) ka, (guint) kb, chart, &err))
+        {
+          g_printerr ("stripfleet compare: %s\n", err->message);
+          return SF_EXIT_RUNTIME;
+        }
+      printf ("\nchart written to %s\n", chart);
+    }
   printf ("\n%s", CAUTION);
   return SF_EXIT_OK;
 }
