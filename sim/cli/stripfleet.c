@@ -473,7 +473,8 @@ verb_compare (int argc, char **argv)
 }
 
 static void
-print_run_summary (const SfScenario *sc, const SfRunSummary *s, const char *out_dir)
+print_run_summary (const SfScenario *sc, const SfRunSummary *s, const char *out_dir,
+                   gboolean replications)
 {
   printf ("Fleet run of '%s' (%s)\n", sf_scenario_get_name (sc), sf_scenario_get_description (sc));
   printf ("  start %s   end %s   %s\n", s->start_iso, s->end_iso, s->end_reason);
@@ -502,7 +503,8 @@ print_run_summary (const SfScenario *sc, const SfRunSummary *s, const char *out_
     }
   printf ("  (time in hours by category; each row adds up to the calendar time)\n");
   if (out_dir)
-    printf ("\n  outputs in %s: summary.json, schedule.csv, daily.csv, events.log\n", out_dir);
+    printf ("\n  outputs in %s: summary.json, schedule.csv, daily.csv, events.log%s\n", out_dir,
+            replications ? ", replications.csv" : "");
 }
 
 static void
@@ -653,7 +655,7 @@ verb_run (int argc, char **argv)
                ? SF_EXIT_INVALID
                : SF_EXIT_RUNTIME;
     }
-  print_run_summary (sc, &sums[0], out);
+  print_run_summary (sc, &sums[0], out, replications > 1);
   if (sums[0].charts_drawn)
     printf ("  charts: daily.png, usage.png, schedule.png%s\n",
             replications > 1 ? ", spread.png" : "");
