@@ -380,6 +380,19 @@ legend_entry (cairo_t *cr, Legend *lg, KeyKind kind, const Rgb *c, double alpha,
     }
 }
 
+/* Lines of small grey text under a legend (NULL-terminated), 17 px apart. */
+static inline void
+legend_notes (cairo_t *cr, Legend *lg, const char *const *lines)
+{
+  font (cr, 12, FALSE);
+  cairo_set_source_rgb (cr, 0.35, 0.35, 0.35);
+  for (; *lines; lines++)
+    {
+      text_at (cr, lg->x, lg->y, 0.0, 0.0, *lines);
+      lg->y += 17;
+    }
+}
+
 /* ---- page ------------------------------------------------------------------ */
 
 static inline cairo_surface_t *

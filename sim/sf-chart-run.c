@@ -760,15 +760,11 @@ draw_daily (const RunData *rd, const char *dir, GError **error)
       lg.y += 19;
     }
   lg.y += 10;
-  font (cr, 12, FALSE);
-  cairo_set_source_rgb (cr, 0.35, 0.35, 0.35);
-  const char *notes[] = { "Gross: dozer rehandle included.", "Days run midnight to midnight,",
-                          "local time at the site; the first", "and last are part days." };
-  for (gsize i = 0; i < G_N_ELEMENTS (notes); i++)
-    {
-      text_at (cr, lg.x, lg.y, 0.0, 0.0, notes[i]);
-      lg.y += 17;
-    }
+  static const char *const notes[] = { "Gross: dozer rehandle included.",
+                                       "Days run midnight to midnight,",
+                                       "local time at the site; the first",
+                                       "and last are part days.", NULL };
+  legend_notes (cr, &lg, notes);
 
   run_footer (cr, rd, W, H);
   return finish_page (surf, cr, dir, "daily.png", error);
@@ -1056,17 +1052,13 @@ draw_schedule (const RunData *rd, const char *dir, GError **error)
       legend_entry (cr, &lg, KEY_FILL, dozer_rgb (i), 1.0, 0, NULL, 0, l1, l2);
     }
   lg.y += 8;
-  font (cr, 12, FALSE);
-  cairo_set_source_rgb (cr, 0.35, 0.35, 0.35);
-  const char *notes[] = { "A bar runs from the start of a", "slice's first push to its end, stops",
-                          "included, in the colour of the dozer", "that made its last push. A box",
-                          "spans a block from its first push", "to its end, its length in days",
-                          "beside it." };
-  for (gsize i = 0; i < G_N_ELEMENTS (notes); i++)
-    {
-      text_at (cr, lg.x, lg.y, 0.0, 0.0, notes[i]);
-      lg.y += 17;
-    }
+  static const char *const notes[] = { "A bar runs from the start of a",
+                                       "slice's first push to its end, stops",
+                                       "included, in the colour of the dozer",
+                                       "that made its last push. A box",
+                                       "spans a block from its first push",
+                                       "to its end, its length in days", "beside it.", NULL };
+  legend_notes (cr, &lg, notes);
   if (rd->dozers->len > G_N_ELEMENTS (DOZER_RGB))
     {
       g_autofree char *s = fmt ("Colours repeat after %u dozers.", (guint) G_N_ELEMENTS (DOZER_RGB));

@@ -867,15 +867,11 @@ sf_study_chart_compare (const SfScenario *sc, const SfCompareResult *rows, guint
   legend_entry (cr, &lg, KEY_FILL, &RGB_GAIN_BLADE, 0.16, 0, NULL, 0,
                 "+20 to +25 %: carry over U blade", "common practice (no source)");
   lg.y += 10;
-  font (cr, 12, FALSE);
-  cairo_set_source_rgb (cr, 0.35, 0.35, 0.35);
-  const char *notes[] = { "Net: bcm that left the dozing", "zone for good, per operating",
-                          "hour. Each block's lane 0 pushed", "out four times by one machine." };
-  for (gsize i = 0; i < G_N_ELEMENTS (notes); i++)
-    {
-      text_at (cr, lg.x, lg.y, 0.0, 0.0, notes[i]);
-      lg.y += 17;
-    }
+  static const char *const notes[] = { "Net: bcm that left the dozing",
+                                       "zone for good, per operating",
+                                       "hour. Each block's lane 0 pushed",
+                                       "out four times by one machine.", NULL };
+  legend_notes (cr, &lg, notes);
 
   const char *desc = sf_scenario_get_description (sc);
   g_autofree char *extra
