@@ -42,3 +42,13 @@ sf_test_remove_tree (const char *path)
   else
     g_unlink (path);
 }
+
+char *
+sf_test_read_file (const char *dir, const char *name, gsize *len)
+{
+  g_autofree char *path = g_build_filename (dir, name, NULL);
+  char *text = NULL;
+  if (!g_file_get_contents (path, &text, len, NULL))
+    fail_msg ("cannot read %s", path);
+  return text;
+}

@@ -21,3 +21,7 @@ char *sf_test_source_path (const char *rel);
 
 /* Removes a file or a folder tree that a test made (recursively). */
 void sf_test_remove_tree (const char *path);
+
+/* The whole of dir/name, newly allocated (its length in *len, may be NULL);
+ * fails the test when it cannot be read. */
+char *sf_test_read_file (const char *dir, const char *name, gsize *len);

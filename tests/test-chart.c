@@ -326,15 +326,6 @@ short_run (void)
   return dir;
 }
 
-static char *
-file_text (const char *dir, const char *name, gsize *len)
-{
-  g_autofree char *path = g_build_filename (dir, name, NULL);
-  char *data = NULL;
-  assert_true (g_file_get_contents (path, &data, len, NULL));
-  return data;
-}
-
 static void
 put_file (const char *dir, const char *name, const char *text)
 {
@@ -366,7 +357,7 @@ test_run_charts (void **state)
       /* a short run draws little; at least 3 % ink and 0.5 % colour
        * (common practice, no source) */
       check_png_ink (path, SF_CHART_RUN_WIDTH_PX, heights[i], 0.03, 0.005);
-      first[i] = file_text (dir, RUN_PNGS[i], &first_len[i]);
+      first[i] = sf_test_read_file (dir, RUN_PNGS[i], &first_len[i]);
     }
   g_autoptr (GPtrArray) names = dir_entries (dir);
   const char *expected[] = { "daily.csv", "daily.png", "events.log", "schedule.csv",
@@ -387,7 +378,7 @@ test_run_charts (void **state)
   for (gsize i = 0; i < G_N_ELEMENTS (RUN_PNGS); i++)
     {
       gsize len = 0;
-      g_autofree char *second = file_text (dir, RUN_PNGS[i], &len);
+      g_autofree char *second = sf_test_read_file (dir, RUN_PNGS[i], &len);
       assert_int_equal (len, first_len[i]);
       assert_memory_equal (second, first[i], len);
       g_free (first[i]);
@@ -423,14 +414,14 @@ test_spread_chart (void **state)
   g_autofree char *path = g_build_filename (dir, "spread.png", NULL);
   check_png_ink (path, SF_CHART_RUN_WIDTH_PX, SF_CHART_SPREAD_HEIGHT_PX, 0.03, 0.005);
   gsize len1 = 0, len2 = 0;
-  g_autofree char *first = file_text (dir, "spread.png", &len1);
+  g_autofree char *first = sf_test_read_file (dir, "spread.png", &len1);
   assert_true (sf_chart_run_spread (dir, &err));
-  g_autofree char *second = file_text (dir, "spread.png", &len2);
+  g_autofree char *second = sf_test_read_file (dir, "spread.png", &len2);
   assert_int_equal (len1, len2);
   assert_memory_equal (first, second, len1);
 
   /* damaged replications.csv: rows out of order, then a single row */
-  g_autofree char *csv = file_text (dir, "replications.csv", NULL);
+  g_autofree char *csv = sf_test_read_file (dir, "replications.csv", NULL);
   g_auto (GStrv) lines = g_strsplit (csv, "\n", -1);
   g_autofree char *swapped = g_strdup_printf ("%s\n%s\n%s\n", lines[0], lines[2], lines[1]);
   g_autofree char *single = g_strdup_printf ("%s\n%s\n", lines[0], lines[1]);
@@ -475,10 +466,10 @@ test_compare_chart (void **state)
                                        &err));
   check_png_ink (path, SF_CHART_COMPARE_WIDTH_PX, SF_CHART_COMPARE_HEIGHT_PX, 0.03, 0.005);
   gsize len1 = 0, len2 = 0;
-  g_autofree char *first = file_text (dir, "compare.png", &len1);
+  g_autofree char *first = sf_test_read_file (dir, "compare.png", &len1);
   assert_true (sf_study_chart_compare (sc, rows, 3, (guint) ku, (guint) kc, (guint) ku, path,
                                        &err));
-  g_autofree char *second = file_text (dir, "compare.png", &len2);
+  g_autofree char *second = sf_test_read_file (dir, "compare.png", &len2);
   assert_int_equal (len1, len2);
   assert_memory_equal (first, second, len1);
   assert_false (sf_study_chart_compare (sc, rows, 0, 0, 0, 0, path, &err));
@@ -519,7 +510,7 @@ test_run_charts_bad_daily (void **state)
   (void) state;
   g_autofree char *dir = short_run ();
   gsize len = 0;
-  g_autofree char *daily = file_text (dir, "daily.csv", &len);
+  g_autofree char *daily = sf_test_read_file (dir, "daily.csv", &len);
   g_autofree char *daily_path = g_build_filename (dir, "daily.csv", NULL);
 
   /* missing */
@@ -570,8 +561,8 @@ test_run_charts_bad_other (void **state)
   (void) state;
   g_autofree char *dir = short_run ();
   gsize len = 0;
-  g_autofree char *summary = file_text (dir, "summary.json", &len);
-  g_autofree char *schedule = file_text (dir, "schedule.csv", &len);
+  g_autofree char *summary = sf_test_read_file (dir, "summary.json", &len);
+  g_autofree char *schedule = sf_test_read_file (dir, "schedule.csv", &len);
 
   /* JSON broken on its third line */
   g_auto (GStrv) jl = g_strsplit (summary, "\n", 4);

@@ -40,16 +40,6 @@ plain_roster (SfScenario *sc, guint operators)
     sc->sim.blast_h[b] = 0;
 }
 
-static char *
-read_file (const char *dir, const char *name, gsize *len)
-{
-  g_autofree char *path = g_build_filename (dir, name, NULL);
-  char *text = NULL;
-  if (!g_file_get_contents (path, &text, len, NULL))
-    fail_msg ("cannot read %s", path);
-  return text;
-}
-
 static void
 rm_rf (const char *dir)
 {
@@ -119,7 +109,7 @@ test_time_usage_adds_up (void **state)
     }
   /* the summary file says the same */
   gsize len;
-  g_autofree char *js = read_file (r->dir, "summary.json", &len);
+  g_autofree char *js = sf_test_read_file (r->dir, "summary.json", &len);
   cJSON *root = cJSON_ParseWithLength (js, len);
   assert_non_null (root);
   const cJSON *dz = cJSON_GetObjectItemCaseSensitive (root, "dozers");
@@ -151,7 +141,7 @@ test_no_production_in_stops (void **state)
 {
   DemoRun *r = *state;
   gsize len;
-  g_autofree char *log = read_file (r->dir, "events.log", &len);
+  g_autofree char *log = sf_test_read_file (r->dir, "events.log", &len);
   g_auto (GStrv) lines = g_strsplit (log, "\n", -1);
   char cat[64][32] = { { 0 } };
   guint seen_shift_change = 0, seen_meal = 0, seen_weather = 0, seen_unmanned = 0, seen_broken = 0;
@@ -219,8 +209,8 @@ static gboolean
 same_file (const char *a, const char *b, const char *name)
 {
   gsize la, lb;
-  g_autofree char *ta = read_file (a, name, &la);
-  g_autofree char *tb = read_file (b, name, &lb);
+  g_autofree char *ta = sf_test_read_file (a, name, &la);
+  g_autofree char *tb = sf_test_read_file (b, name, &lb);
   return la == lb && memcmp (ta, tb, la) == 0;
 }
 

@@ -36,16 +36,6 @@ typedef struct {
   double load_s;
 } Run;
 
-static char *
-read_text (const char *dir, const char *name, gsize *len)
-{
-  g_autofree char *path = g_build_filename (dir, name, NULL);
-  char *text = NULL;
-  if (!g_file_get_contents (path, &text, len, NULL))
-    fail_msg ("cannot read %s", path);
-  return text;
-}
-
 static int
 setup_run (void **state)
 {
@@ -67,7 +57,7 @@ setup_run (void **state)
   if (!r->rp)
     fail_msg ("%s", err->message);
   gsize len;
-  g_autofree char *js = read_text (r->dir, "summary.json", &len);
+  g_autofree char *js = sf_test_read_file (r->dir, "summary.json", &len);
   r->summary = cJSON_ParseWithLength (js, len);
   assert_non_null (r->summary);
   *state = r;
@@ -175,7 +165,7 @@ test_lanes_match_schedule (void **state)
   g_autofree guint *rows = g_new0 (guint, nl);
   g_autofree double *bcm = g_new0 (double, nl);
   gsize len;
-  g_autofree char *csv = read_text (r->dir, "schedule.csv", &len);
+  g_autofree char *csv = sf_test_read_file (r->dir, "schedule.csv", &len);
   g_auto (GStrv) lines = g_strsplit (csv, "\n", -1);
   assert_true (g_str_has_prefix (lines[0], "block,lane,slice,"));
   guint n_rows = 0;
