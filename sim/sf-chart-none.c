@@ -68,3 +68,17 @@ sf_study_chart_compare (const SfScenario *sc, const SfCompareResult *rows, guint
   (void) class_b;
   return no_charts (png_path, error);
 }
+
+gboolean
+sf_study_chart_handover (const SfScenario *sc, guint block, guint lane, guint class_index,
+                         const SfHandoverSlice *rows, const SfHandoverTotals *totals,
+                         const char *png_path, GError **error)
+{
+  (void) sc;
+  (void) block;
+  (void) lane;
+  (void) class_index;
+  (void) rows;
+  (void) totals;
+  return no_charts (png_path, error);
+}

@@ -883,3 +883,186 @@ sf_study_chart_compare (const SfScenario *sc, const SfCompareResult *rows, guint
   cairo_surface_destroy (surf);
   return ok;
 }
+
+/* ---- the hand-over chart: where dozing should stop ------------------------------ */
+
+static const Rgb RGB_DOZE = { 0.902, 0.624, 0.000 };   /* orange: the dozer's cost */
+static const Rgb RGB_REHANDLE = { 0.60, 0.05, 0.15 };  /* the spoil line's red */
+static const Rgb RGB_ALT = { 0.000, 0.447, 0.698 };    /* blue: the alternative */
+static const Rgb RGB_TOTAL = { 0.10, 0.10, 0.10 };
+
+gboolean
+sf_study_chart_handover (const SfScenario *sc, guint block, guint lane, guint class_index,
+                         const SfHandoverSlice *rows, const SfHandoverTotals *t,
+                         const char *png_path, GError **error)
+{
+  g_return_val_if_fail (sc != NULL && t != NULL && png_path != NULL, FALSE);
+  const guint n = t->n_slices, nw = t->n_worked;
+  if (n == 0 || !rows)
+    {
+      g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_ARGUMENT, "no slice to chart in %s",
+                   png_path);
+      return FALSE;
+    }
+  const int W = SF_CHART_HANDOVER_WIDTH_PX, H = SF_CHART_HANDOVER_HEIGHT_PX;
+  cairo_t *cr;
+  cairo_surface_t *surf = page_new (W, H, &cr);
+  g_autofree char *title = fmt ("Where dozing should stop: block %u, lane %u  -  scenario '%s'",
+                                block, lane, sf_scenario_get_name (sc));
+  g_autofree char *best
+    = t->best_slices == nw ? fmt ("doze every slice the lane reached")
+      : t->best_slices == 0 ? fmt ("doze nothing")
+      : t->best_slices == 1 ? fmt ("doze slice 0, the %s takes the rest", t->alternative)
+                            : fmt ("doze slices 0 to %u, the %s takes the rest", t->best_slices - 1,
+                                   t->alternative);
+  g_autofree char *subtitle
+    = fmt ("one %s dozer at %.0f an operating hour, the %s at %.2f per bcm: least total cost "
+           "%.0f (%s)",
+           sf_scenario_get_class_name (sc, class_index), t->dozer_cost_per_h, t->alternative,
+           t->alt_cost_per_bcm, t->best_total_cost, best);
+  page_titles (cr, title, subtitle);
+
+  /* left panel: cost per bcm of each slice, stacked dozer + rehandle */
+  double top_u = t->alt_cost_per_bcm;
+  for (guint i = 0; i < n; i++)
+    if (isfinite (rows[i].unit_cost_per_bcm))
+      top_u = MAX (top_u, rows[i].unit_cost_per_bcm);
+  double ys = sf_chart_tick_step (top_u * 1.15, 6);
+  const double pw = (W - 92 - 80 - 360) / 2.0;
+  const Frame f1 = { 92, 110, pw, H - 110 - 120, -0.5, n - 0.5, 0.0,
+                     ceil (top_u * 1.15 / ys - 1e-9) * ys };
+  set_rgb (cr, &RGB_TEXT);
+  font (cr, 15, TRUE);
+  text_at (cr, f1.left, f1.top - 10, 0.0, 1.0, "Cost per bcm of each slice");
+  draw_axes (cr, &f1, NULL, "cost per bcm of the slice's design volume", 6, 6);
+  cairo_save (cr);
+  clip_frame (cr, &f1);
+  const double slot = f1.width / n, bw = MIN (0.6 * slot, 60.0);
+  for (guint i = 0; i < n; i++)
+    {
+      const SfHandoverSlice *h = &rows[i];
+      if (!(h->volume_bcm > 0) || !isfinite (h->dozer_cost))
+        continue; /* never dozed: no bar */
+      double dz = h->dozer_cost / h->volume_bcm, rh = h->rehandle_cost / h->volume_bcm;
+      double u = px (&f1, i) - 0.5 * bw;
+      set_rgba (cr, &RGB_DOZE, 0.9);
+      cairo_rectangle (cr, u, py (&f1, dz), bw, py (&f1, 0) - py (&f1, dz));
+      cairo_fill (cr);
+      if (rh > 0)
+        {
+          set_rgba (cr, &RGB_REHANDLE, 0.85);
+          cairo_rectangle (cr, u, py (&f1, dz + rh), bw, py (&f1, dz) - py (&f1, dz + rh));
+          cairo_fill (cr);
+        }
+    }
+  set_rgb (cr, &RGB_ALT);
+  cairo_set_line_width (cr, 2.5);
+  double dash[] = { 8.0, 5.0 };
+  cairo_set_dash (cr, dash, 2, 0);
+  cairo_move_to (cr, f1.left, py (&f1, t->alt_cost_per_bcm));
+  cairo_line_to (cr, f1.left + f1.width, py (&f1, t->alt_cost_per_bcm));
+  cairo_stroke (cr);
+  cairo_set_dash (cr, NULL, 0, 0);
+  cairo_restore (cr);
+  draw_frame_box (cr, &f1);
+  font (cr, 13, FALSE);
+  set_rgb (cr, &RGB_TEXT);
+  for (guint i = 0; i < n; i++)
+    {
+      g_autofree char *s = fmt ("%u", rows[i].slice);
+      text_at (cr, px (&f1, i), f1.top + f1.height + 8, 0.5, 0.0, s);
+    }
+  font (cr, 14, FALSE);
+  text_at (cr, f1.left + 0.5 * f1.width, f1.top + f1.height + 28, 0.5, 0.0,
+           "slice, in the order dozed");
+
+  /* right panel: total cost of the lane against slices dozed */
+  double lo = INFINITY, hi = 0;
+  for (guint k = 0; k <= nw; k++)
+    {
+      double v = k < nw ? rows[k].total_if_stop_here : t->all_dozed_cost;
+      lo = MIN (lo, v);
+      hi = MAX (hi, v);
+    }
+  double ts = sf_chart_tick_step (MAX (hi - lo, hi * 0.05) * 1.3, 6);
+  const Frame f2 = { f1.left + pw + 80 + 12, 110, pw - 12, f1.height, -0.4, nw + 0.4,
+                     MAX (0.0, floor ((lo - 0.15 * (hi - lo + ts)) / ts) * ts),
+                     ceil ((hi + 0.1 * (hi - lo + ts)) / ts) * ts };
+  set_rgb (cr, &RGB_TEXT);
+  font (cr, 15, TRUE);
+  text_at (cr, f2.left, f2.top - 10, 0.0, 1.0, "Total cost of the lane");
+  draw_axes (cr, &f2, NULL, "cost of the lane", 6, 6);
+  cairo_save (cr);
+  clip_frame (cr, &f2);
+  set_rgb (cr, &RGB_TOTAL);
+  cairo_set_line_width (cr, 2.0);
+  for (guint k = 0; k <= nw; k++)
+    {
+      double v = k < nw ? rows[k].total_if_stop_here : t->all_dozed_cost;
+      if (k == 0)
+        cairo_move_to (cr, px (&f2, k), py (&f2, v));
+      else
+        cairo_line_to (cr, px (&f2, k), py (&f2, v));
+    }
+  cairo_stroke (cr);
+  for (guint k = 0; k <= nw; k++)
+    {
+      double v = k < nw ? rows[k].total_if_stop_here : t->all_dozed_cost;
+      cairo_arc (cr, px (&f2, k), py (&f2, v), k == t->best_slices ? 7.0 : 4.0, 0, 2 * G_PI);
+      if (k == t->best_slices)
+        set_rgb (cr, &RGB_ALT);
+      else
+        set_rgb (cr, &RGB_TOTAL);
+      cairo_fill (cr);
+    }
+  cairo_restore (cr);
+  draw_frame_box (cr, &f2);
+  font (cr, 13, FALSE);
+  set_rgb (cr, &RGB_TEXT);
+  for (guint k = 0; k <= nw; k++)
+    {
+      g_autofree char *s = fmt ("%u", k);
+      text_at (cr, px (&f2, k), f2.top + f2.height + 8, 0.5, 0.0, s);
+    }
+  font (cr, 14, FALSE);
+  text_at (cr, f2.left + 0.5 * f2.width, f2.top + f2.height + 28, 0.5, 0.0,
+           "slices dozed before the hand-over");
+  {
+    double v = t->best_total_cost;
+    g_autofree char *s = fmt ("least: %.0f", v);
+    font (cr, 13, TRUE);
+    set_rgb (cr, &RGB_ALT);
+    double u = px (&f2, t->best_slices);
+    double ha = t->best_slices > nw / 2 ? 1.0 : 0.0;
+    halo_text (cr, u + (ha > 0.5 ? -10 : 10), py (&f2, v) - 10, ha, 1.0, s);
+  }
+
+  /* legend */
+  Legend lg = { f2.left + f2.width + 28, f2.top, W - (f2.left + f2.width + 28) - 16 };
+  legend_heading (cr, &lg, "Cost per bcm");
+  legend_entry (cr, &lg, KEY_BAR, &RGB_DOZE, 0.9, 0, NULL, 0, "dozer",
+                "operating hours x cost per hour");
+  legend_entry (cr, &lg, KEY_BAR, &RGB_REHANDLE, 0.85, 0, NULL, 0, "dragline rehandle",
+                "dozed over the final spoil line");
+  g_autofree char *alt = fmt ("the %s", t->alternative);
+  legend_entry (cr, &lg, KEY_LINE, &RGB_ALT, 1.0, 2.5, dash, 2, alt, "its cost per bcm");
+  lg.y += 10;
+  legend_heading (cr, &lg, "Total of the lane");
+  legend_entry (cr, &lg, KEY_DOT, &RGB_TOTAL, 1.0, 2.0, NULL, 0, "slices 0 .. k-1 dozed,",
+                "the rest by the alternative");
+  lg.y += 10;
+  static const char *const notes[] = { "The least total is the answer",
+                                       "(incremental analysis). Volumes",
+                                       "are the slices' design volumes",
+                                       "(the plan's cut).", NULL };
+  legend_notes (cr, &lg, notes);
+
+  const char *desc = sf_scenario_get_description (sc);
+  g_autofree char *extra = fmt ("hand-over study of scenario '%s'%s", sf_scenario_get_name (sc),
+                                desc && strstr (desc, "nvented") ? " (invented scenario)" : "");
+  page_caution (cr, W, H, extra);
+  cairo_destroy (cr);
+  gboolean ok = page_write (surf, png_path, error);
+  cairo_surface_destroy (surf);
+  return ok;
+}

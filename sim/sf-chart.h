@@ -38,6 +38,8 @@ G_BEGIN_DECLS
 #define SF_CHART_SPREAD_HEIGHT_PX 720
 #define SF_CHART_COMPARE_WIDTH_PX 1280
 #define SF_CHART_COMPARE_HEIGHT_PX 720
+#define SF_CHART_HANDOVER_WIDTH_PX 1280
+#define SF_CHART_HANDOVER_HEIGHT_PX 720
 
 /* Axis tick spacing for a data range: the smallest step of the form 1, 2 or
  * 5 times a power of ten that gives at most `max_ticks` intervals over

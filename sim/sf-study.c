@@ -125,6 +125,114 @@ sf_study_compare (const SfScenario *sc, guint block, guint class_strategy, guint
   return TRUE;
 }
 
+GArray *
+sf_study_handover (const SfScenario *sc, guint block, guint lane, guint class_index,
+                   const SfStudyOptions *opt, double dragline_cost_per_bcm,
+                   double truck_cost_per_bcm, SfHandoverTotals *totals, GError **error)
+{
+  g_return_val_if_fail (sc != NULL && totals != NULL, NULL);
+  memset (totals, 0, sizeof *totals);
+  const gboolean dl = dragline_cost_per_bcm > 0 && isfinite (dragline_cost_per_bcm);
+  const gboolean ts = truck_cost_per_bcm > 0 && isfinite (truck_cost_per_bcm);
+  if (!dl && !ts)
+    {
+      g_set_error_literal (error, SF_MODEL_ERROR, SF_MODEL_ERROR_ARGUMENT,
+                           "no alternative to price against: give a dragline or a "
+                           "truck-and-shovel cost per bcm greater than 0");
+      return NULL;
+    }
+  if (class_index >= sc->classes->len)
+    {
+      g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_ARGUMENT,
+                   "dozer class %u does not exist: the scenario defines %u", class_index,
+                   sc->classes->len);
+      return NULL;
+    }
+  const SfDozerClass *cls = g_ptr_array_index (sc->classes, class_index);
+  if (!(cls->cost_per_operating_h > 0))
+    {
+      g_set_error (error, SF_MODEL_ERROR, SF_MODEL_ERROR_ARGUMENT,
+                   "dozer class '%s' has no cost_per_operating_h: the hand-over study needs it",
+                   cls->name);
+      return NULL;
+    }
+  SfLaneTotals lt;
+  g_autoptr (GArray) res = sf_study_push_lane (sc, block, lane, class_index, opt, &lt, error);
+  if (!res)
+    return NULL;
+  g_autoptr (GArray) plan = sf_study_slice_plan (sc, block, opt, error);
+  if (!plan)
+    return NULL;
+  const double lcm2bcm = 1.0 / (1.0 + sc->material.swell);
+  totals->dozer_cost_per_h = cls->cost_per_operating_h;
+  totals->alternative = dl && (!ts || dragline_cost_per_bcm <= truck_cost_per_bcm)
+                          ? "dragline"
+                          : "truck-and-shovel";
+  totals->alt_cost_per_bcm = g_str_equal (totals->alternative, "dragline") ? dragline_cost_per_bcm
+                                                                            : truck_cost_per_bcm;
+  /* one row per slice of the plan, its design volume; the slices the lane
+   * worked carry the dozer's cost (the lane works them in plan order and may
+   * stop early: the slices it never reached go to the alternative whatever
+   * the choice) */
+  const guint n = plan->len;
+  GArray *out = g_array_sized_new (FALSE, TRUE, sizeof (SfHandoverSlice), n);
+  for (guint k = 0; k < n; k++)
+    {
+      const SfSliceInfo *si = &g_array_index (plan, SfSliceInfo, k);
+      SfHandoverSlice h = { .slice = si->index, .kind = si->kind, .volume_bcm = si->cut_bcm,
+                            .dozer_cost = NAN, .unit_cost_per_bcm = INFINITY };
+      g_array_append_val (out, h);
+      totals->volume_bcm += h.volume_bcm;
+    }
+  guint worked = 0;
+  for (guint r = 0; r < res->len; r++)
+    {
+      const SfSliceResult *sr = &g_array_index (res, SfSliceResult, r);
+      if (sr->slice >= n || sr->slice != worked)
+        break; /* only a run of slices from the first counts */
+      SfHandoverSlice *h = &g_array_index (out, SfHandoverSlice, sr->slice);
+      h->dozer_cost = cls->cost_per_operating_h * sr->operating_h;
+      h->over_spoil_bcm = sr->over_spoil_lcm * lcm2bcm;
+      h->rehandle_cost = dl ? h->over_spoil_bcm * dragline_cost_per_bcm : 0.0;
+      h->unit_cost_per_bcm = h->volume_bcm > 0
+                               ? (h->dozer_cost + h->rehandle_cost) / h->volume_bcm
+                               : INFINITY;
+      worked++;
+    }
+  /* total(k), k = 0 .. worked: dozing of slices 0 .. k-1 plus the alternative
+   * for slices k .. n-1 (incremental analysis of the choices) */
+  double dozed = 0.0;
+  totals->best_total_cost = INFINITY;
+  for (guint k = 0; k <= worked; k++)
+    {
+      double left = 0.0; /* summed afresh: no rounding carried from slice to slice */
+      for (guint j = k; j < n; j++)
+        left += g_array_index (out, SfHandoverSlice, j).volume_bcm;
+      double total = dozed + totals->alt_cost_per_bcm * left;
+      if (k < n)
+        g_array_index (out, SfHandoverSlice, k).total_if_stop_here = total;
+      if (k == 0)
+        totals->none_dozed_cost = total;
+      if (k == worked)
+        totals->all_dozed_cost = total;
+      if (total < totals->best_total_cost - 1e-9 * fabs (total))
+        {
+          totals->best_total_cost = total;
+          totals->best_slices = k;
+        }
+      if (k < worked)
+        {
+          const SfHandoverSlice *h = &g_array_index (out, SfHandoverSlice, k);
+          dozed += h->dozer_cost + h->rehandle_cost;
+        }
+    }
+  for (guint k = worked + 1; k < n; k++)
+    g_array_index (out, SfHandoverSlice, k).total_if_stop_here = NAN;
+  totals->n_slices = n;
+  totals->n_worked = worked;
+  return out;
+}
+
 gboolean
 sf_study_check_blocks (const SfScenario *sc, guint *n_bad, GError **error)
 {

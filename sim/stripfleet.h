@@ -153,6 +153,52 @@ typedef struct {
 gboolean sf_study_compare (const SfScenario *sc, guint block, guint class_strategy,
                            guint class_a, guint class_b, SfCompareResult *out, GError **error);
 
+/* ---- where dozing should stop: the hand-over study ----------------------- */
+
+/* One slice of a block's plan, priced. */
+typedef struct {
+  guint slice;
+  const char *kind;          /* static */
+  double volume_bcm;         /* the slice's design volume (its cut in the plan) */
+  double dozer_cost;         /* class cost per operating hour x the operating hours the lane
+                                took on the slice; NAN when the lane never reached it */
+  double over_spoil_bcm;     /* dozed spoil dumped over the final spoil line ... */
+  double rehandle_cost;      /* ... and what the dragline charges to dig it again */
+  double unit_cost_per_bcm;  /* (dozer_cost + rehandle_cost) / volume_bcm: the marginal cost;
+                                INFINITY when not dozed */
+  double total_if_stop_here; /* the lane's total cost when dozing stops before this slice and
+                                the alternative takes this slice and the ones after it; NAN
+                                past the last slice worked + 1 */
+} SfHandoverSlice;
+
+typedef struct {
+  double dozer_cost_per_h;   /* the class's cost_per_operating_h */
+  double alt_cost_per_bcm;   /* the cheaper alternative given */
+  const char *alternative;   /* "dragline" or "truck-and-shovel"; static */
+  guint n_slices;            /* of the plan */
+  guint n_worked;            /* slices the lane worked, from the first (<= n_slices) */
+  guint best_slices;         /* slices to doze for the least total cost (0 .. n_worked) */
+  double best_total_cost;
+  double all_dozed_cost;     /* every slice worked dozed, the rest by the alternative */
+  double none_dozed_cost;    /* every slice left to the alternative */
+  double volume_bcm;         /* all slices of the plan */
+} SfHandoverTotals;
+
+/* Prices lane `lane` of `block` worked slice by slice by one machine of
+ * `class_index` (its cost_per_operating_h must be given) against leaving the
+ * rest to a dragline (dragline_cost_per_bcm, also charged for dozed spoil
+ * over the final spoil line) or a truck-and-shovel fleet
+ * (truck_cost_per_bcm); a cost <= 0 means "not available", and at least one
+ * must be given.  For k = 0 .. n slices dozed the lane's total cost is the
+ * dozer and rehandle cost of slices 0 .. k-1 plus the alternative's cost of
+ * the design volume of slices k .. n-1 (the plan's cut); the least is the
+ * answer.  Returns a GArray of SfHandoverSlice, one per slice of the plan
+ * (caller frees). */
+GArray *sf_study_handover (const SfScenario *sc, guint block, guint lane, guint class_index,
+                           const SfStudyOptions *opt, double dragline_cost_per_bcm,
+                           double truck_cost_per_bcm, SfHandoverTotals *totals,
+                           GError **error);
+
 /* Lays out every block of the scenario as a run would (its section settled
  * at the angle of repose, its design and slice plan), building the given
  * sections once.  FALSE when any block cannot be laid out: one error whose
@@ -299,6 +345,15 @@ void sf_spread (const double *x, guint n, SfSpread *out);
  * block the net gain of straight pushes and the gain of class_a over class_b
  * as bars, with the trade's rules of thumb as shaded bands (+10 to +15 %,
  * +20 to +25 %: common practice, no source).  Written atomically. */
+/* Draws a hand-over study (sf_study_handover's rows and totals) as a PNG:
+ * the cost per bcm of each slice against the alternative's, and the lane's
+ * total cost against the number of slices dozed, the least marked.  Written
+ * atomically. */
+gboolean sf_study_chart_handover (const SfScenario *sc, guint block, guint lane,
+                                  guint class_index, const SfHandoverSlice *rows,
+                                  const SfHandoverTotals *totals, const char *png_path,
+                                  GError **error);
+
 gboolean sf_study_chart_compare (const SfScenario *sc, const SfCompareResult *rows, guint n,
                                  guint class_strategy, guint class_a, guint class_b,
                                  const char *png_path, GError **error);

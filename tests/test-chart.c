@@ -477,6 +477,32 @@ test_compare_chart (void **state)
   remove_dir (dir);
 }
 
+/* The hand-over chart of block 10: a valid PNG of the promised size, not
+ * blank, byte for byte the same when drawn again. */
+static void
+test_handover_chart (void **state)
+{
+  (void) state;
+  g_autoptr (SfScenario) sc = demo ();
+  int ku = sf_scenario_find_class (sc, "u-blade-100t");
+  SfHandoverTotals t;
+  g_autoptr (GError) err = NULL;
+  g_autoptr (GArray) rows = sf_study_handover (sc, 10, 0, (guint) ku, NULL, 0.0, 0.95, &t, &err);
+  assert_non_null (rows);
+  g_autofree char *dir = g_dir_make_tmp ("sf-chart-ho-XXXXXX", NULL);
+  g_autofree char *path = g_build_filename (dir, "handover.png", NULL);
+  const SfHandoverSlice *r = (const SfHandoverSlice *) (void *) rows->data;
+  assert_true (sf_study_chart_handover (sc, 10, 0, (guint) ku, r, &t, path, &err));
+  check_png_ink (path, SF_CHART_HANDOVER_WIDTH_PX, SF_CHART_HANDOVER_HEIGHT_PX, 0.03, 0.005);
+  gsize len1 = 0, len2 = 0;
+  g_autofree char *first = sf_test_read_file (dir, "handover.png", &len1);
+  assert_true (sf_study_chart_handover (sc, 10, 0, (guint) ku, r, &t, path, &err));
+  g_autofree char *second = sf_test_read_file (dir, "handover.png", &len2);
+  assert_int_equal (len1, len2);
+  assert_memory_equal (first, second, len1);
+  remove_dir (dir);
+}
+
 /* No chart in the folder (stripfleet.h: inputs are checked before anything
  * is drawn). */
 static void
@@ -665,6 +691,7 @@ main (void)
     cmocka_unit_test (test_run_charts_bad_other),
     cmocka_unit_test (test_spread_chart),
     cmocka_unit_test (test_compare_chart),
+    cmocka_unit_test (test_handover_chart),
 #else
     cmocka_unit_test (test_without_cairo),
 #endif

@@ -182,7 +182,8 @@ static void
 test_help (void **state)
 {
   (void) state;
-  static const char *const verbs[] = { "validate", "plan", "lane", "compare", "run" };
+  static const char *const verbs[] = { "validate", "plan", "lane", "compare", "handover",
+                                       "run" };
   g_auto (CliResult) r = cli_run ("--help");
   assert_int_equal (r.status, SF_EXIT_OK);
   assert_contains (r.out, "Usage: stripfleet VERB");
@@ -311,6 +312,17 @@ test_studies_demo (void **state)
     assert_int_equal (r.status, SF_EXIT_OK);
     assert_contains (r.out, "gain of straight pushes");
     assert_contains (r.out, "Planning estimate only");
+  }
+  {
+    /* where dozing should stop, against a truck-and-shovel fleet; and without
+     * any alternative: a usage error */
+    g_auto (CliResult) h = cli_run ("handover", "--block", "1", "--truck-cost", "0.95", f->small);
+    assert_int_equal (h.status, SF_EXIT_OK);
+    assert_contains (h.out, "least cost:");
+    assert_contains (h.out, "Planning estimate only");
+    g_auto (CliResult) none = cli_run ("handover", "--block", "1", f->small);
+    assert_int_equal (none.status, SF_EXIT_USAGE);
+    assert_contains (none.err, "at least one greater than 0");
   }
   {
     /* every block of the two-block scenario, with the chart */

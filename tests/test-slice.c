@@ -225,6 +225,97 @@ test_compare_matches_studies (void **state)
   sf_assert_close (r.blade_gain_pct, 33.1, 0.05, 0);
 }
 
+/* The hand-over study prices each slice and picks the cheapest number of
+ * slices to doze by incremental analysis of the choices (engineering
+ * economy; common practice, no source).  Checked by recomputing from the
+ * plan and a separate lane study (analytic): each slice's volume is the
+ * plan's cut, its dozer cost the class's 520 an hour (the invented demo's
+ * u-blade-100t) times the lane's operating hours on it, its rehandle cost
+ * the dragline's price times the spoil dozed over the final spoil line, and
+ * total(k) = sum over s < k of (dozer + rehandle) + alternative x sum over
+ * s >= k of the volume; the answer is the least total.  A very dear
+ * alternative means dozing every slice, a nearly free one dozing nothing;
+ * no alternative, or a class without a cost, is an argument error. */
+static void
+test_handover (void **state)
+{
+  (void) state;
+  g_autoptr (SfScenario) sc = demo ();
+  int ku = sf_scenario_find_class (sc, "u-blade-100t");
+  assert_true (ku >= 0);
+  g_autoptr (GError) err = NULL;
+  SfHandoverTotals t;
+  const double dragline = 1.2;
+  g_autoptr (GArray) rows
+    = sf_study_handover (sc, 10, 0, (guint) ku, NULL, dragline, 0.0, &t, &err);
+  assert_non_null (rows);
+  g_autoptr (GArray) plan = sf_study_slice_plan (sc, 10, NULL, &err);
+  SfLaneTotals lt;
+  g_autoptr (GArray) res = sf_study_push_lane (sc, 10, 0, (guint) ku, NULL, &lt, &err);
+  assert_int_equal (rows->len, plan->len);
+  assert_int_equal (t.n_slices, plan->len);
+  assert_int_equal (t.n_worked, res->len);
+  assert_string_equal (t.alternative, "dragline");
+  sf_assert_close (t.dozer_cost_per_h, 520.0, 0, 0);
+  const double swell = 0.25; /* the demo's material.swell */
+  double cost[16] = { 0 }, vol[16] = { 0 };
+  guint n = rows->len;
+  assert_true (n < 16);
+  for (guint k = 0; k < n; k++)
+    {
+      const SfHandoverSlice *h = &g_array_index (rows, SfHandoverSlice, k);
+      const SfSliceInfo *si = &g_array_index (plan, SfSliceInfo, k);
+      sf_assert_close (h->volume_bcm, si->cut_bcm, 0, 0);
+      vol[k] = si->cut_bcm;
+      if (k < res->len)
+        {
+          const SfSliceResult *r = &g_array_index (res, SfSliceResult, k);
+          sf_assert_close (h->dozer_cost, 520.0 * r->operating_h, 0, 1e-12);
+          sf_assert_close (h->rehandle_cost, dragline * r->over_spoil_lcm / (1 + swell), 1e-9,
+                           1e-12);
+          cost[k] = h->dozer_cost + h->rehandle_cost;
+          sf_assert_close (h->unit_cost_per_bcm, cost[k] / vol[k], 0, 1e-12);
+        }
+    }
+  double best = INFINITY;
+  guint best_k = 0;
+  for (guint k = 0; k <= t.n_worked; k++)
+    {
+      double total = 0;
+      for (guint s = 0; s < k; s++)
+        total += cost[s];
+      for (guint s = k; s < n; s++)
+        total += dragline * vol[s];
+      if (k < n)
+        sf_assert_close (g_array_index (rows, SfHandoverSlice, k).total_if_stop_here, total, 1e-9,
+                         1e-12);
+      if (total < best)
+        {
+          best = total;
+          best_k = k;
+        }
+    }
+  assert_int_equal (t.best_slices, best_k);
+  sf_assert_close (t.best_total_cost, best, 1e-9, 1e-12);
+
+  /* the extremes */
+  SfHandoverTotals dear, cheap;
+  g_autoptr (GArray) r1 = sf_study_handover (sc, 10, 0, (guint) ku, NULL, 0.0, 1e6, &dear, &err);
+  g_autoptr (GArray) r2 = sf_study_handover (sc, 10, 0, (guint) ku, NULL, 0.0, 1e-6, &cheap, &err);
+  assert_true (r1 && r2);
+  assert_string_equal (dear.alternative, "truck-and-shovel");
+  assert_int_equal (dear.best_slices, dear.n_worked);
+  assert_int_equal (cheap.best_slices, 0);
+
+  /* refusals */
+  assert_null (sf_study_handover (sc, 10, 0, (guint) ku, NULL, 0.0, 0.0, &t, &err));
+  assert_true (err->domain == SF_MODEL_ERROR && err->code == SF_MODEL_ERROR_ARGUMENT);
+  g_clear_error (&err);
+  ((SfDozerClass *) g_ptr_array_index (sc->classes, (guint) ku))->cost_per_operating_h = 0;
+  assert_null (sf_study_handover (sc, 10, 0, (guint) ku, NULL, 1.0, 0.0, &t, &err));
+  assert_non_null (strstr (err->message, "has no cost_per_operating_h"));
+}
+
 /* Production falls as push distance grows within a slice: the last pushes
  * of a layer are longer than the first (the face retreats towards the
  * highwall; textbook production curves fall with distance, Peurifoy et al.
@@ -280,6 +371,7 @@ main (void)
     cmocka_unit_test (test_straight_push_gain),
     cmocka_unit_test (test_carry_blade_gain),
     cmocka_unit_test (test_compare_matches_studies),
+    cmocka_unit_test (test_handover),
     cmocka_unit_test (test_push_distance_grows_in_a_slice),
   };
   return cmocka_run_group_tests_name ("slice", tests, NULL, NULL);

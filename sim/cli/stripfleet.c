@@ -7,6 +7,7 @@
  * SF_EXIT_* values (docs/cli.md).
  */
 #include <locale.h>
+#include <math.h>
 #include <signal.h>
 #include <stdio.h>
 #include <string.h>
@@ -30,6 +31,7 @@ static int verb_validate (int argc, char **argv);
 static int verb_plan (int argc, char **argv);
 static int verb_lane (int argc, char **argv);
 static int verb_compare (int argc, char **argv);
+static int verb_handover (int argc, char **argv);
 static int verb_run (int argc, char **argv);
 
 static const Verb VERBS[] = {
@@ -37,6 +39,7 @@ static const Verb VERBS[] = {
   { "plan", "print a block's slice plan (volumes, push distances, grades)", verb_plan },
   { "lane", "push one lane of a block to completion with one dozer", verb_lane },
   { "compare", "production gain of straight pushes and of a carry blade", verb_compare },
+  { "handover", "where dozing should stop and a dragline or trucks take the rest", verb_handover },
   { "run", "simulate the whole fleet working the strip through time", verb_run },
 };
 
@@ -464,6 +467,130 @@ verb_compare (int argc, char **argv)
                                    (guint) ks, (guint) ka, (guint) kb, chart, &err))
         {
           g_printerr ("stripfleet compare: %s\n", err->message);
+          return SF_EXIT_RUNTIME;
+        }
+      printf ("\nchart written to %s\n", chart);
+    }
+  printf ("\n%s", CAUTION);
+  return SF_EXIT_OK;
+}
+
+static int
+verb_handover (int argc, char **argv)
+{
+  static double dragline_cost = 0, truck_cost = 0;
+  g_autofree char *chart = NULL;
+  g_autoptr (GOptionContext) ctx = g_option_context_new (
+    "SCENARIO - where dozing should stop and a dragline or trucks take the rest");
+  GOptionEntry entries[] = {
+    { "lane", 'l', 0, G_OPTION_ARG_INT, &opt_lane, "Lane number within the block, from 0", "N" },
+    { "class", 'c', 0, G_OPTION_ARG_STRING, &opt_class,
+      "Dozer class name (default: the first class); its cost_per_operating_h is used", "NAME" },
+    { "dragline-cost", 0, 0, G_OPTION_ARG_DOUBLE, &dragline_cost,
+      "Dragline cost per bcm (rehandle and the rest of the lane); 0: no dragline", "C" },
+    { "truck-cost", 0, 0, G_OPTION_ARG_DOUBLE, &truck_cost,
+      "Truck-and-shovel cost per bcm for the rest of the lane; 0: none", "C" },
+    { "chart", 0, 0, G_OPTION_ARG_FILENAME, &chart,
+      "Also draw the cost per slice and the total against the slices dozed as a PNG chart",
+      "FILE.png" },
+    G_OPTION_ENTRY_NULL
+  };
+  g_option_context_set_summary (
+    ctx, "Works one lane of a block slice by slice with one dozer, prices every slice (the\n"
+         "class's cost per operating hour, and a dragline's for spoil dozed over the final\n"
+         "spoil line) and finds how many slices to doze before the cheaper alternative\n"
+         "takes the rest, by the least total cost of the lane. Costs in the scenario's\n"
+         "currency units.");
+  g_option_context_add_main_entries (ctx, design_entries, NULL);
+  g_option_context_add_main_entries (ctx, entries, NULL);
+  if (!parse_verb (ctx, "handover", &argc, &argv, 1))
+    return SF_EXIT_USAGE;
+  SfStudyOptions o;
+  if (!study_options (&o))
+    return SF_EXIT_USAGE;
+  if (!(dragline_cost >= 0 && truck_cost >= 0 && isfinite (dragline_cost)
+        && isfinite (truck_cost))
+      || (dragline_cost <= 0 && truck_cost <= 0))
+    {
+      g_printerr ("stripfleet handover: --dragline-cost and --truck-cost: expected costs per "
+                  "bcm >= 0, at least one greater than 0\n");
+      return SF_EXIT_USAGE;
+    }
+  int rc = SF_EXIT_OK;
+  g_autoptr (SfScenario) sc = load_or_report (argv[1], &rc);
+  if (!sc)
+    return rc;
+  int k = resolve_class (sc, opt_class, 0);
+  if (opt_lane < 0)
+    g_printerr ("stripfleet handover: --lane: expected a lane number from 0, found %d\n",
+                opt_lane);
+  if (k < 0 || opt_lane < 0)
+    return SF_EXIT_USAGE;
+  g_autoptr (GError) err = NULL;
+  SfHandoverTotals t;
+  g_autoptr (GArray) rows = sf_study_handover (sc, (guint) opt_block, (guint) opt_lane, (guint) k,
+                                               &o, dragline_cost, truck_cost, &t, &err);
+  if (!rows)
+    {
+      g_printerr ("%s: %s\n", argv[1], err->message);
+      return SF_EXIT_INVALID;
+    }
+  printf ("Block %d, lane %d of '%s', one %s dozer at %.2f an operating hour; the rest to the "
+          "%s at %.2f per bcm\n\n",
+          opt_block, opt_lane, sf_scenario_get_name (sc),
+          sf_scenario_get_class_name (sc, (guint) k), t.dozer_cost_per_h, t.alternative,
+          t.alt_cost_per_bcm);
+  printf ("%5s %-9s %11s %11s %12s %13s %11s %16s\n", "slice", "kind", "volume_bcm",
+          "dozer_cost", "overspl_bcm", "rehandle_cost", "cost/bcm", "total_stop_here");
+  for (guint i = 0; i < rows->len; i++)
+    {
+      const SfHandoverSlice *h = &g_array_index (rows, SfHandoverSlice, i);
+      if (i < t.n_worked)
+        printf ("%5u %-9s %11.1f %11.1f %12.1f %13.1f %11.3f %16.1f\n", h->slice, h->kind,
+                h->volume_bcm, h->dozer_cost, h->over_spoil_bcm, h->rehandle_cost,
+                h->unit_cost_per_bcm, h->total_if_stop_here);
+      else
+        printf ("%5u %-9s %11.1f %11s %12s %13s %11s %16s\n", h->slice, h->kind, h->volume_bcm,
+                "not dozed", "", "", "", "");
+    }
+  printf ("%5s %-9s %11.1f %52s %16.1f\n", "all", "", t.volume_bcm, "", t.all_dozed_cost);
+  printf ("\n  (volume_bcm: the slice's design volume, its cut in the plan; total_stop_here: the "
+          "lane's cost when dozing stops before that slice and the %s moves it and the slices "
+          "after it)\n",
+          t.alternative);
+  if (t.n_worked < t.n_slices)
+    printf ("  the lane reached %u of the %u slices (see `lane`); the others go to the %s in "
+            "every choice\n",
+            t.n_worked, t.n_slices, t.alternative);
+  double dozed_bcm = 0;
+  for (guint i = 0; i < t.best_slices; i++)
+    dozed_bcm += g_array_index (rows, SfHandoverSlice, i).volume_bcm;
+  if (t.best_slices == 0)
+    printf ("  least cost: doze nothing; the %s moves all %.1f bcm: %.1f, against %.1f with "
+            "every slice dozed\n",
+            t.alternative, t.volume_bcm, t.best_total_cost, t.all_dozed_cost);
+  else if (t.best_slices == t.n_slices)
+    printf ("  least cost: doze every slice (%.1f bcm): %.1f, against %.1f with none dozed\n",
+            t.volume_bcm, t.best_total_cost, t.none_dozed_cost);
+  else if (t.best_slices == 1)
+    printf ("  least cost: doze slice 0 (%.1f bcm), leave slices 1 to %u (%.1f bcm) to the %s: "
+            "%.1f, against %.1f with every slice dozed and %.1f with none\n",
+            dozed_bcm, t.n_slices - 1, t.volume_bcm - dozed_bcm, t.alternative,
+            t.best_total_cost, t.all_dozed_cost, t.none_dozed_cost);
+  else
+    printf ("  least cost: doze slices 0 to %u (%.1f bcm), leave slices %u to %u (%.1f bcm) to "
+            "the %s: %.1f, against %.1f with every slice dozed and %.1f with none\n",
+            t.best_slices - 1, dozed_bcm, t.best_slices, t.n_slices - 1, t.volume_bcm - dozed_bcm,
+            t.alternative, t.best_total_cost, t.all_dozed_cost, t.none_dozed_cost);
+  printf ("  (the rule: incremental analysis of the %u choices, engineering economy; common "
+          "practice, no source)\n",
+          t.n_worked + 1);
+  if (chart)
+    {
+      if (!sf_study_chart_handover (sc, (guint) opt_block, (guint) opt_lane, (guint) k,
+                                    (const SfHandoverSlice *) (void *) rows->data, &t, chart, &err))
+        {
+          g_printerr ("stripfleet handover: %s\n", err->message);
           return SF_EXIT_RUNTIME;
         }
       printf ("\nchart written to %s\n", chart);
