@@ -320,6 +320,10 @@ test_studies_demo (void **state)
     assert_int_equal (h.status, SF_EXIT_OK);
     assert_contains (h.out, "least cost:");
     assert_contains (h.out, "Planning estimate only");
+    g_auto (CliResult) all = cli_run ("handover", "--all-blocks", "--dragline-cost", "1.2", f->small);
+    assert_int_equal (all.status, SF_EXIT_OK);
+    assert_contains (all.out, "All 2 blocks of 'demo-strip-small'");
+    assert_contains (all.out, "strip (lane 0 of every block):");
     g_auto (CliResult) none = cli_run ("handover", "--block", "1", f->small);
     assert_int_equal (none.status, SF_EXIT_USAGE);
     assert_contains (none.err, "at least one greater than 0");

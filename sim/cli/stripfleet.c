@@ -475,10 +475,71 @@ verb_compare (int argc, char **argv)
   return SF_EXIT_OK;
 }
 
+/* The hand-over study on every block: one line each, and the strip's totals. */
+static int
+handover_all_blocks (const SfScenario *sc, const char *path, guint lane, guint k,
+                     const SfStudyOptions *o, double dragline_cost, double truck_cost)
+{
+  const guint n_blocks = sf_scenario_get_n_blocks (sc);
+  const gboolean tty = isatty (2);
+  double vol = 0, dozed_vol = 0, best = 0, all = 0, none = 0;
+  const char *alt = NULL;
+  double alt_cost = 0;
+  GString *table = g_string_new (NULL);
+  for (guint b = 0; b < n_blocks; b++)
+    {
+      if (tty)
+        g_printerr ("\r  block %u of %u", b + 1, n_blocks);
+      g_autoptr (GError) err = NULL;
+      SfHandoverTotals t;
+      g_autoptr (GArray) rows
+        = sf_study_handover (sc, b, lane, k, o, dragline_cost, truck_cost, &t, &err);
+      if (!rows)
+        {
+          if (tty)
+            g_printerr ("\n");
+          g_printerr ("%s: %s\n", path, err->message);
+          g_string_free (table, TRUE);
+          return SF_EXIT_INVALID;
+        }
+      double d = 0;
+      for (guint i = 0; i < t.best_slices; i++)
+        d += g_array_index (rows, SfHandoverSlice, i).volume_bcm;
+      g_string_append_printf (table, "%5u %7u of %-3u %12.1f %12.1f %6.1f%% %12.1f %12.1f %12.1f\n",
+                              b, t.best_slices, t.n_slices, t.volume_bcm, d,
+                              t.volume_bcm > 0 ? 100.0 * d / t.volume_bcm : 0.0,
+                              t.best_total_cost, t.all_dozed_cost, t.none_dozed_cost);
+      vol += t.volume_bcm;
+      dozed_vol += d;
+      best += t.best_total_cost;
+      all += t.all_dozed_cost;
+      none += t.none_dozed_cost;
+      alt = t.alternative;
+      alt_cost = t.alt_cost_per_bcm;
+    }
+  if (tty)
+    g_printerr ("\r%-30s\r", "");
+  printf ("All %u blocks of '%s', lane %u of each, one %s dozer; the rest to the %s at %.2f per "
+          "bcm\n\n",
+          n_blocks, sf_scenario_get_name (sc), lane, sf_scenario_get_class_name (sc, k), alt,
+          alt_cost);
+  printf ("%5s %14s %12s %12s %7s %12s %12s %12s\n", "block", "slices_dozed", "volume_bcm",
+          "dozed_bcm", "share", "least_cost", "all_dozed", "none_dozed");
+  fputs (table->str, stdout);
+  g_string_free (table, TRUE);
+  printf ("  strip (lane %u of every block): %.1f of %.1f bcm dozed (%.1f %%); least cost %.1f, "
+          "against %.1f with every slice dozed and %.1f with none\n",
+          lane, dozed_vol, vol, vol > 0 ? 100.0 * dozed_vol / vol : 0.0, best, all, none);
+  printf ("  (per block as `handover --block N`; docs/model.md §6.4)\n");
+  printf ("\n%s", CAUTION);
+  return SF_EXIT_OK;
+}
+
 static int
 verb_handover (int argc, char **argv)
 {
   static double dragline_cost = 0, truck_cost = 0;
+  static gboolean all_blocks = FALSE;
   g_autofree char *chart = NULL;
   g_autoptr (GOptionContext) ctx = g_option_context_new (
     "SCENARIO - where dozing should stop and a dragline or trucks take the rest");
@@ -490,6 +551,8 @@ verb_handover (int argc, char **argv)
       "Dragline cost per bcm (rehandle and the rest of the lane); 0: no dragline", "C" },
     { "truck-cost", 0, 0, G_OPTION_ARG_DOUBLE, &truck_cost,
       "Truck-and-shovel cost per bcm for the rest of the lane; 0: none", "C" },
+    { "all-blocks", 0, 0, G_OPTION_ARG_NONE, &all_blocks,
+      "The study on every block of the strip (one line each) instead of --block", NULL },
     { "chart", 0, 0, G_OPTION_ARG_FILENAME, &chart,
       "Also draw the cost per slice and the total against the slices dozed as a PNG chart",
       "FILE.png" },
@@ -526,6 +589,14 @@ verb_handover (int argc, char **argv)
                 opt_lane);
   if (k < 0 || opt_lane < 0)
     return SF_EXIT_USAGE;
+  if (all_blocks && chart)
+    {
+      g_printerr ("stripfleet handover: --chart draws one block: give --block, not --all-blocks\n");
+      return SF_EXIT_USAGE;
+    }
+  if (all_blocks)
+    return handover_all_blocks (sc, argv[1], (guint) opt_lane, (guint) k, &o, dragline_cost,
+                                truck_cost);
   g_autoptr (GError) err = NULL;
   SfHandoverTotals t;
   g_autoptr (GArray) rows = sf_study_handover (sc, (guint) opt_block, (guint) opt_lane, (guint) k,
