@@ -2,8 +2,9 @@
  *
  * sf-chart.c — PNG charts of the block studies, drawn with cairo.
  *
- * Owns: the two study charts (sf_study_chart_plan, sf_study_chart_lane in
- * stripfleet.h), their profile lines and bands, and sf_chart_tick_step();
+ * Owns: the study charts (sf_study_chart_plan, sf_study_chart_lane,
+ * sf_study_chart_compare, sf_study_chart_handover in stripfleet.h), their
+ * profile lines, bands and bars, and sf_chart_tick_step();
  * the drawing kit they share with the run charts (frames, axes, text,
  * legends, page, atomic PNG writing) is in sf-chart-kit.h.
  *

@@ -1,9 +1,12 @@
 /* SPDX-License-Identifier: MIT
  *
  * sf-study.c — block studies for the public API: the slice plan of a block,
- * and one lane of a block pushed out by one machine.  Wires the section,
- * slice and push modules together; owns nothing beyond the call.  The
- * wiring itself (SfStudyBlock, sf-study.h) is shared with the charts.
+ * one lane of a block pushed out by one machine, the four lane studies of a
+ * comparison (sf_study_compare), the priced hand-over study
+ * (sf_study_handover: where dozing should stop) and the check that every
+ * block can be laid out (sf_study_check_blocks).  Wires the section, slice
+ * and push modules together; owns nothing beyond the call.  The wiring
+ * itself (SfStudyBlock, sf-study.h) is shared with the charts.
  */
 #include <math.h>
 #include <string.h>
