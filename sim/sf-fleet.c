@@ -1230,6 +1230,10 @@ world_summarise (World *w, SfRunSummary *s, SfTime end)
   s->calendar_ms = end;
   s->calendar_h = (double) end / SF_TIME_MS_PER_H;
   s->events = w->events;
+  s->replication = w->opt.replication;
+  s->randomness = !w->opt.no_randomness;
+  s->crew_operators = g_array_sized_new (FALSE, FALSE, sizeof (guint), sc->roster.n_crews);
+  g_array_append_vals (s->crew_operators, w->crew_operators, sc->roster.n_crews);
   double uncovered_m = 0, coal_t = 0;
   for (guint b = 0; b < w->n_blocks; b++)
     {
@@ -1318,6 +1322,8 @@ sf_run_summary_clear (SfRunSummary *s)
       g_array_unref (s->dozers);
     }
   g_free (s->notice);
+  if (s->crew_operators)
+    g_array_unref (s->crew_operators);
   memset (s, 0, sizeof *s);
 }
 

@@ -187,6 +187,18 @@ summary_json (const SfScenario *sc, const SfRunSummary *sum, guint64 seed)
                                          "to local regulations, site procedures and licensed "
                                          "practice.");
   cJSON_AddNumberToObject (root, "seed", (double) seed);
+  /* how the run was made, beside the seed: enough to make it again */
+  cJSON *ro = cJSON_AddObjectToObject (root, "run");
+  cJSON_AddNumberToObject (ro, "replication", sum->replication);
+  cJSON_AddNumberToObject (ro, "dozers", sum->dozers->len);
+  cJSON_AddBoolToObject (ro, "breakdowns_and_weather", sum->randomness);
+  cJSON *ops = cJSON_AddObjectToObject (ro, "crew_operators");
+  for (guint c = 0; sum->crew_operators && c < sum->crew_operators->len; c++)
+    {
+      g_autofree char *fallback = g_strdup_printf ("crew %u", c);
+      const char *name = sc->roster.crews[c].name ? sc->roster.crews[c].name : fallback;
+      cJSON_AddNumberToObject (ops, name, g_array_index (sum->crew_operators, guint, c));
+    }
   cJSON_AddBoolToObject (root, "complete", sum->complete);
   cJSON_AddStringToObject (root, "end_reason", sum->end_reason);
   cJSON_AddStringToObject (root, "start", sum->start_iso);

@@ -356,6 +356,20 @@ sf_scenario_get_class_name (const SfScenario *sc, guint class_index)
   return c->name;
 }
 
+guint
+sf_scenario_get_n_crews (const SfScenario *sc)
+{
+  g_return_val_if_fail (sc != NULL, 0);
+  return sc->roster.n_crews;
+}
+
+const char *
+sf_scenario_get_crew_name (const SfScenario *sc, guint crew_index)
+{
+  g_return_val_if_fail (sc != NULL && crew_index < sc->roster.n_crews, NULL);
+  return sc->roster.crews[crew_index].name;
+}
+
 int
 sf_scenario_find_class (const SfScenario *sc, const char *name)
 {

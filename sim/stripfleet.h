@@ -72,6 +72,9 @@ guint sf_scenario_get_n_blocks (const SfScenario *sc);
 guint sf_scenario_get_n_lanes (const SfScenario *sc); /* lanes in every block */
 guint sf_scenario_get_n_classes (const SfScenario *sc);
 const char *sf_scenario_get_class_name (const SfScenario *sc, guint class_index);
+/* Crews of the roster (the default roster has one, "all"), in scenario order. */
+guint sf_scenario_get_n_crews (const SfScenario *sc);
+const char *sf_scenario_get_crew_name (const SfScenario *sc, guint crew_index);
 /* Index of the class named `name`, or -1. */
 int sf_scenario_find_class (const SfScenario *sc, const char *name);
 /* Blade type of a class: "straight", "semi-u", "u" or "carry" (static). */
@@ -296,6 +299,11 @@ typedef struct {
   guint pushes;
   guint64 events;
   GArray *dozers;           /* SfDozerResult, owned */
+  guint replication;        /* the replication's index (its random streams) */
+  gboolean randomness;      /* breakdowns and weather were drawn (FALSE with no_randomness) */
+  GArray *crew_operators;   /* guint per scenario crew: operators it manned in this run (the
+                               scenario's, scaled with n_dozers, or SfRunOptions.operators);
+                               owned */
   gboolean charts_drawn;    /* SfRunOptions.charts asked for and all three drawn */
   char *notice;             /* NULL, or lines for the user about the output folder (a chart
                                not drawn, entries of the earlier folder kept aside); owned */

@@ -509,6 +509,10 @@ test_manning_scales_with_fleet (void **state)
       g_autoptr (GError) err = NULL;
       assert_true (sf_run (sc, &o, &s, &err));
       assert_int_equal (s.dozers->len, 12);
+      /* the summary says how the crews were manned */
+      assert_int_equal (s.crew_operators->len, sc->roster.n_crews);
+      for (guint k = 0; k < s.crew_operators->len; k++)
+        assert_int_equal (g_array_index (s.crew_operators, guint, k), cases[c].manned);
       for (guint i = 0; i < 12; i++)
         {
           const SfDozerResult *d = &g_array_index (s.dozers, SfDozerResult, i);

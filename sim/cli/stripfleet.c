@@ -700,6 +700,15 @@ print_run_summary (const SfScenario *sc, const SfRunSummary *s, const char *out_
       printf ("\n");
     }
   printf ("  (time in hours by category; each row adds up to the calendar time)\n");
+  if (s->crew_operators && s->crew_operators->len > 0)
+    {
+      printf ("  operators a crew:");
+      for (guint c = 0; c < s->crew_operators->len; c++)
+        printf (" %s %u%s", sf_scenario_get_crew_name (sc, c),
+                g_array_index (s->crew_operators, guint, c),
+                c + 1 < s->crew_operators->len ? "," : "");
+      printf (" (for %u dozers)\n", s->dozers->len);
+    }
   if (out_dir)
     printf ("\n  outputs in %s: summary.json, schedule.csv, daily.csv, events.log%s\n", out_dir,
             replications ? ", replications.csv" : "");
