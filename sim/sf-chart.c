@@ -209,13 +209,19 @@ draw_arrow (cairo_t *cr, double x0, double y0, double x1, double y1, double head
   cairo_fill (cr);
 }
 
-/* The caution line, and "invented scenario" when the scenario says so. */
+/* The caution line, with `what` (may be NULL) and "invented scenario" when
+ * the scenario says so. */
 static void
-page_footer (cairo_t *cr, const SfScenario *sc, int w, int h)
+study_footer (cairo_t *cr, const SfScenario *sc, const char *what, int w, int h)
 {
   const char *desc = sf_scenario_get_description (sc);
   gboolean invented = desc && strstr (desc, "nvented") != NULL;
-  page_caution (cr, w, h, invented ? "invented scenario" : NULL);
+  g_autofree char *extra
+    = what ? fmt ("%s of scenario '%s'%s", what, sf_scenario_get_name (sc),
+                  invented ? " (invented scenario)" : "")
+           : invented ? g_strdup ("invented scenario")
+                      : NULL;
+  page_caution (cr, w, h, extra);
 }
 
 /* ---- section frame ---------------------------------------------------------- */
@@ -498,7 +504,7 @@ sf_study_chart_plan (const SfScenario *sc, guint block, const SfStudyOptions *op
           legend_entry (cr, &lg, KEY_FILL, slice_rgb (k), 0.6, 2.0, NULL, 0, l, NULL);
         }
     }
-  page_footer (cr, sc, W, H);
+  study_footer (cr, sc, NULL, W, H);
   cairo_destroy (cr);
   gboolean ok = page_write (surf, png_path, error);
   cairo_surface_destroy (surf);
@@ -749,7 +755,7 @@ sf_study_chart_lane (const SfScenario *sc, guint block, guint lane, guint class_
       lb.y += 19;
     }
 
-  page_footer (cr, sc, W, H);
+  study_footer (cr, sc, NULL, W, H);
   cairo_destroy (cr);
   gboolean ok = page_write (surf, png_path, error);
   cairo_surface_destroy (surf);
@@ -874,11 +880,7 @@ sf_study_chart_compare (const SfScenario *sc, const SfCompareResult *rows, guint
                                        "out four times by one machine.", NULL };
   legend_notes (cr, &lg, notes);
 
-  const char *desc = sf_scenario_get_description (sc);
-  g_autofree char *extra
-    = fmt ("block studies of scenario '%s'%s", sf_scenario_get_name (sc),
-           desc && strstr (desc, "nvented") ? " (invented scenario)" : "");
-  page_caution (cr, W, H, extra);
+  study_footer (cr, sc, "block studies", W, H);
   cairo_destroy (cr);
   gboolean ok = page_write (surf, png_path, error);
   cairo_surface_destroy (surf);
@@ -1058,10 +1060,7 @@ sf_study_chart_handover (const SfScenario *sc, guint block, guint lane, guint cl
                                        "(the plan's cut).", NULL };
   legend_notes (cr, &lg, notes);
 
-  const char *desc = sf_scenario_get_description (sc);
-  g_autofree char *extra = fmt ("hand-over study of scenario '%s'%s", sf_scenario_get_name (sc),
-                                desc && strstr (desc, "nvented") ? " (invented scenario)" : "");
-  page_caution (cr, W, H, extra);
+  study_footer (cr, sc, "hand-over study", W, H);
   cairo_destroy (cr);
   gboolean ok = page_write (surf, png_path, error);
   cairo_surface_destroy (surf);

@@ -87,40 +87,22 @@ atomic_file_free (SfAtomicFile *af)
 }
 
 gboolean
-sf_atomic_file_commit_all (SfAtomicFile **afs, guint n, GError **error)
+sf_atomic_file_commit (SfAtomicFile *af, GError **error)
 {
-  gboolean ok = TRUE;
-  guint synced = 0;
-  for (; ok && synced < n; synced++)
-    ok = atomic_file_sync (afs[synced], error);
-  if (!ok)
+  gboolean ok = atomic_file_sync (af, error);
+  if (ok && g_rename (af->tmp_path, af->final_path) != 0)
     {
-      /* afs[synced - 1] failed and removed its own file */
-      for (guint i = 0; i + 1 < synced; i++)
-        g_unlink (afs[i]->tmp_path);
-      for (guint i = synced; i < n; i++)
-        sf_atomic_file_abort (afs[i]);
-      for (guint i = 0; i < synced; i++)
-        atomic_file_free (afs[i]);
-      return FALSE;
+      int e = errno;
+      g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (e), "cannot write %s: %s",
+                   af->final_path, g_strerror (e));
+      g_unlink (af->tmp_path);
+      ok = FALSE;
     }
-  for (guint i = 0; i < n; i++)
+  if (ok)
     {
-      if (ok && g_rename (afs[i]->tmp_path, afs[i]->final_path) != 0)
-        {
-          int e = errno;
-          g_set_error (error, G_FILE_ERROR, g_file_error_from_errno (e), "cannot write %s: %s",
-                       afs[i]->final_path, g_strerror (e));
-          ok = FALSE;
-        }
-      if (!ok)
-        g_unlink (afs[i]->tmp_path);
-    }
-  if (ok && n > 0)
-    {
-      /* the renames themselves on disk (a crash of the machine, not only of
-       * the process, keeps them) */
-      g_autofree char *dir = g_path_get_dirname (afs[0]->final_path);
+      /* the rename itself on disk (a crash of the machine, not only of the
+       * process, keeps it) */
+      g_autofree char *dir = g_path_get_dirname (af->final_path);
       int fd = g_open (dir, O_RDONLY | O_CLOEXEC, 0);
       if (fd >= 0)
         {
@@ -128,15 +110,8 @@ sf_atomic_file_commit_all (SfAtomicFile **afs, guint n, GError **error)
           close (fd);
         }
     }
-  for (guint i = 0; i < n; i++)
-    atomic_file_free (afs[i]);
+  atomic_file_free (af);
   return ok;
-}
-
-gboolean
-sf_atomic_file_commit (SfAtomicFile *af, GError **error)
-{
-  return sf_atomic_file_commit_all (&af, 1, error);
 }
 
 void

@@ -36,14 +36,6 @@ typedef struct {
 SfAtomicFile *sf_atomic_file_open (const char *path, GError **error);
 /* Flushes, syncs, closes and renames into place; frees af in every case. */
 gboolean sf_atomic_file_commit (SfAtomicFile *af, GError **error);
-/* Commits n files of one folder as a set: first every file is flushed,
- * synced and closed, and only when all of them are on disk are they renamed
- * into place, back to back in array order, and the folder synced.  On a
- * failure before the renames no final name is touched and every temporary
- * file is removed.  (A process killed between two renames — a window of a
- * few system calls — leaves the earlier files new and the later ones old;
- * put the file that marks a complete set last.)  Frees every af. */
-gboolean sf_atomic_file_commit_all (SfAtomicFile **afs, guint n, GError **error);
 /* Closes and removes the temporary file; frees af.  NULL is fine. */
 void sf_atomic_file_abort (SfAtomicFile *af);
 
