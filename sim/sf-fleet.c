@@ -35,6 +35,7 @@
 #include <glib/gstdio.h>
 
 #include "sf-kernel.h"
+#include "sf-layout.h"
 #include "sf-outdir.h"
 #include "sf-push.h"
 #include "sf-reliability.h"
@@ -92,22 +93,9 @@ typedef struct {
   guint work_slice;      /* the slice last worked (valid index) */
 } LaneState;
 
-/* One block's section and design: built once for a run (or a set of
- * replications, which share it read-only: Layout) and never changed. */
-typedef struct {
-  SfBlockSection *bs;
-  SfSlicePlan *plan;
-  double *final;         /* final design in the zone (+inf outside) */
-  double *spoil;         /* standard final spoil line */
-} BlockLayout;
 
 typedef struct {
-  guint n_blocks;
-  BlockLayout *blocks;   /* all NULL for a block out of scope */
-} Layout;
-
-typedef struct {
-  const SfBlockSection *bs;  /* these four borrowed from the Layout */
+  const SfBlockSection *bs;  /* these four borrowed from the SfLayout */
   const SfSlicePlan *plan;
   const double *final;
   double *spoil;
@@ -841,132 +829,9 @@ world_free (World *w)
   g_free (w);
 }
 
-static void
-layout_free (Layout *lay)
-{
-  if (!lay)
-    return;
-  for (guint b = 0; b < lay->n_blocks; b++)
-    {
-      BlockLayout *bl = &lay->blocks[b];
-      g_free (bl->final);
-      g_free (bl->spoil);
-      sf_slice_plan_free (bl->plan);
-      sf_block_section_free (bl->bs);
-    }
-  g_free (lay->blocks);
-  g_free (lay);
-}
-
-/* Laying out the blocks on a thread pool: each block is independent of the
- * others and reads only the shared set of given sections, so the layout is
- * the same whatever the number of threads. */
-typedef struct {
-  const SfScenario *sc;
-  const SfSectionSet *set;
-  Layout *lay;
-  GError **errors;   /* per block */
-  gboolean progress;
-  gint n_done;       /* atomic */
-  guint n_todo;
-  GMutex print_lock;
-} LayoutJob;
-
-/* Block b's section (settled at the angle of repose: most of the set-up
- * time), slice plan, spoil line and final design, or errors[b]. */
-static void
-layout_block (gpointer data, gpointer user_data)
-{
-  LayoutJob *job = user_data;
-  const SfScenario *sc = job->sc;
-  guint b = GPOINTER_TO_UINT (data) - 1;
-  BlockLayout *bl = &job->lay->blocks[b];
-  GError **error = &job->errors[b];
-  bl->bs = sf_block_section_new_from_set (job->set, sc, b, error);
-  if (bl->bs)
-    bl->plan = sf_slice_plan_new (bl->bs, &sc->design, sc->strip.lane_width_m, error);
-  if (bl->plan)
-    {
-      const guint n = bl->bs->n;
-      bl->spoil = g_new (double, n);
-      for (guint i = 0; i < n; i++)
-        bl->spoil[i]
-          = sf_block_section_spoil_line (bl->bs, bl->bs->x0_m + (i + 0.5) * bl->bs->dx_m);
-      /* the final design, from a lane as it stands at the start */
-      SfLane *lane = sf_lane_new (bl->bs->surface, bl->bs->base, n, bl->bs->x0_m, bl->bs->dx_m,
-                                  sc->strip.lane_width_m, bl->bs->tan_repose);
-      bl->final = g_new (double, n);
-      sf_slice_plan_final (bl->plan, sf_slice_plan_zone_end (bl->plan, lane), bl->final, n);
-      sf_lane_free (lane);
-    }
-  if (job->progress)
-    {
-      gint done = g_atomic_int_add (&job->n_done, 1) + 1;
-      g_mutex_lock (&job->print_lock);
-      fprintf (stderr, "\r  laying out blocks: %d of %u", done, job->n_todo);
-      g_mutex_unlock (&job->print_lock);
-    }
-}
-
-/* Every block's layout (only `only_block` when it is >= 0) on up to as many
- * threads as there are processors; the first failure in block order is the
- * error.  `progress`: a line on stderr (a terminal) while it works. */
-static Layout *
-layout_new (const SfScenario *sc, int only_block, gboolean progress, GError **error)
-{
-  Layout *lay = g_new0 (Layout, 1);
-  lay->n_blocks = sc->strip.n_blocks;
-  lay->blocks = g_new0 (BlockLayout, lay->n_blocks);
-  g_autoptr (SfSectionSet) set = sf_section_set_new (sc, error);
-  if (!set)
-    {
-      layout_free (lay);
-      return NULL;
-    }
-  LayoutJob job = { .sc = sc, .set = set, .lay = lay,
-                    .errors = g_new0 (GError *, lay->n_blocks),
-                    .progress = progress && isatty (2),
-                    .n_todo = only_block >= 0 ? 1 : lay->n_blocks };
-  g_mutex_init (&job.print_lock);
-  guint n_threads = MIN ((guint) g_get_num_processors (), job.n_todo);
-  GThreadPool *pool = n_threads > 1
-                        ? g_thread_pool_new (layout_block, &job, (gint) n_threads, TRUE, NULL)
-                        : NULL;
-  for (guint b = 0; b < lay->n_blocks; b++)
-    {
-      if (only_block >= 0 && (guint) only_block != b)
-        continue;
-      if (pool)
-        g_thread_pool_push (pool, GUINT_TO_POINTER (b + 1), NULL);
-      else
-        layout_block (GUINT_TO_POINTER (b + 1), &job);
-    }
-  if (pool)
-    g_thread_pool_free (pool, FALSE, TRUE);
-  if (job.progress)
-    fprintf (stderr, "\r%-40s\r", "");
-  gboolean ok = TRUE;
-  for (guint b = 0; b < lay->n_blocks; b++)
-    if (job.errors[b])
-      {
-        if (ok)
-          g_propagate_error (error, g_steal_pointer (&job.errors[b]));
-        ok = FALSE;
-        g_clear_error (&job.errors[b]);
-      }
-  g_free (job.errors);
-  g_mutex_clear (&job.print_lock);
-  if (!ok)
-    {
-      layout_free (lay);
-      return NULL;
-    }
-  return lay;
-}
-
 /* A world over `lay` (borrowed; it must outlive the world). */
 static World *
-world_new (const SfScenario *sc, const SfRunOptions *opt, const Layout *lay)
+world_new (const SfScenario *sc, const SfRunOptions *opt, const SfLayout *lay)
 {
   World *w = g_new0 (World, 1);
   w->sc = sc;
@@ -986,7 +851,7 @@ world_new (const SfScenario *sc, const SfRunOptions *opt, const Layout *lay)
       gboolean in_scope = opt->only_block < 0 || (guint) opt->only_block == b;
       if (!in_scope)
         continue;
-      const BlockLayout *bl = &lay->blocks[b];
+      const SfBlockLayout *bl = &lay->blocks[b];
       g_assert (bl->bs != NULL);
       bk->bs = bl->bs;
       bk->plan = bl->plan;
@@ -1330,7 +1195,7 @@ sf_run_summary_clear (SfRunSummary *s)
 /* One run over `lay`; its four files go into write_dir (NULL: none), named
  * in messages as shown_dir. */
 static gboolean
-run_one (const SfScenario *sc, const SfRunOptions *opt, const Layout *lay, const char *write_dir,
+run_one (const SfScenario *sc, const SfRunOptions *opt, const SfLayout *lay, const char *write_dir,
          const char *shown_dir, SfRunSummary *sum, GError **error)
 {
   SfRunOptions o = *opt; /* checked by run_set */
@@ -1383,7 +1248,7 @@ run_one (const SfScenario *sc, const SfRunOptions *opt, const Layout *lay, const
 typedef struct {
   const SfScenario *sc;
   SfRunOptions opt;
-  const Layout *layout;   /* shared read-only by every replication */
+  const SfLayout *layout;   /* shared read-only by every replication */
   const char *write_dir;  /* replication 0's files; NULL: none */
   gboolean count_done;    /* a "replications done" line on stderr */
   gint n_done;            /* atomic */
@@ -1463,7 +1328,7 @@ run_set (const SfScenario *sc, const SfRunOptions *opt, guint first, guint n, gu
   if (opt->out_dir && !(od = sf_outdir_begin (opt->out_dir, sc->name, opt->overwrite, FALSE, error)))
     return FALSE;
   /* the blocks' sections and designs, once for every replication */
-  Layout *lay = layout_new (sc, opt->only_block, opt->progress, error);
+  SfLayout *lay = sf_layout_new (sc, opt->only_block, opt->progress, NULL, error);
   if (!lay)
     {
       sf_outdir_abort (od);
@@ -1537,7 +1402,7 @@ run_set (const SfScenario *sc, const SfRunOptions *opt, guint first, guint n, gu
         g_string_append_printf (notice, "%s%s", notice->len ? "\n" : "", kept);
     }
   sf_outdir_abort (od);
-  layout_free (lay);
+  sf_layout_free (lay);
   if (ok && notice->len)
     sums[0].notice = g_strdup (notice->str);
   g_string_free (notice, TRUE);

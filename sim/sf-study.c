@@ -11,6 +11,7 @@
 #include <math.h>
 #include <string.h>
 
+#include "sf-layout.h"
 #include "sf-study.h"
 
 static void
@@ -240,33 +241,8 @@ gboolean
 sf_study_check_blocks (const SfScenario *sc, guint *n_bad, GError **error)
 {
   g_return_val_if_fail (sc != NULL, FALSE);
-  if (n_bad)
-    *n_bad = 0;
-  g_autoptr (SfSectionSet) set = sf_section_set_new (sc, error);
-  if (!set)
-    {
-      if (n_bad)
-        *n_bad = sc->strip.n_blocks;
-      return FALSE;
-    }
-  g_autoptr (GString) problems = g_string_new (NULL);
-  guint bad = 0;
-  for (guint b = 0; b < sc->strip.n_blocks; b++)
-    {
-      g_autoptr (GError) err = NULL;
-      g_autoptr (SfBlockSection) bs = sf_block_section_new_from_set (set, sc, b, &err);
-      g_autoptr (SfSlicePlan) plan
-        = bs ? sf_slice_plan_new (bs, &sc->design, sc->strip.lane_width_m, &err) : NULL;
-      if (plan)
-        continue;
-      g_string_append_printf (problems, "%s%s", bad ? "\n" : "", err->message);
-      bad++;
-    }
-  if (n_bad)
-    *n_bad = bad;
-  if (bad)
-    g_set_error_literal (error, SF_MODEL_ERROR, SF_MODEL_ERROR_GEOMETRY, problems->str);
-  return bad == 0;
+  g_autoptr (SfLayout) lay = sf_layout_new (sc, -1, FALSE, n_bad, error);
+  return lay != NULL;
 }
 
 SfStudyBlock *
