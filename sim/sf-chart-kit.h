@@ -489,6 +489,17 @@ page_write (cairo_surface_t *surf, const char *png_path, GError **error)
   return sf_atomic_file_commit (af, error);
 }
 
+/* Ends a page: releases the context, writes the surface as PNG to png_path
+ * (page_write) and releases the surface. */
+static inline gboolean
+page_finish (cairo_surface_t *surf, cairo_t *cr, const char *png_path, GError **error)
+{
+  cairo_destroy (cr);
+  gboolean ok = page_write (surf, png_path, error);
+  cairo_surface_destroy (surf);
+  return ok;
+}
+
 /* A label's box in pixels, for placing labels clear of each other. */
 typedef struct {
   double x0, y0, x1, y1;

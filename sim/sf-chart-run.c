@@ -578,11 +578,8 @@ static gboolean
 finish_page (cairo_surface_t *surf, cairo_t *cr, const char *dir, const char *name,
              GError **error)
 {
-  cairo_destroy (cr);
   g_autofree char *path = g_build_filename (dir, name, NULL);
-  gboolean ok = page_write (surf, path, error);
-  cairo_surface_destroy (surf);
-  return ok;
+  return page_finish (surf, cr, path, error);
 }
 
 /* ---- daily.png ---------------------------------------------------------------- */

@@ -209,10 +209,12 @@ draw_arrow (cairo_t *cr, double x0, double y0, double x1, double y1, double head
   cairo_fill (cr);
 }
 
-/* The caution line, with `what` (may be NULL) and "invented scenario" when
- * the scenario says so. */
-static void
-study_footer (cairo_t *cr, const SfScenario *sc, const char *what, int w, int h)
+/* Ends a study chart: the caution line, with `what` (may be NULL) and
+ * "invented scenario" when the scenario says so, then the page written to
+ * png_path (page_finish). */
+static gboolean
+study_page_finish (cairo_surface_t *surf, cairo_t *cr, const SfScenario *sc, const char *what,
+                   int w, int h, const char *png_path, GError **error)
 {
   const char *desc = sf_scenario_get_description (sc);
   gboolean invented = desc && strstr (desc, "nvented") != NULL;
@@ -222,6 +224,7 @@ study_footer (cairo_t *cr, const SfScenario *sc, const char *what, int w, int h)
            : invented ? g_strdup ("invented scenario")
                       : NULL;
   page_caution (cr, w, h, extra);
+  return page_finish (surf, cr, png_path, error);
 }
 
 /* ---- section frame ---------------------------------------------------------- */
@@ -504,11 +507,7 @@ sf_study_chart_plan (const SfScenario *sc, guint block, const SfStudyOptions *op
           legend_entry (cr, &lg, KEY_FILL, slice_rgb (k), 0.6, 2.0, NULL, 0, l, NULL);
         }
     }
-  study_footer (cr, sc, NULL, W, H);
-  cairo_destroy (cr);
-  gboolean ok = page_write (surf, png_path, error);
-  cairo_surface_destroy (surf);
-  return ok;
+  return study_page_finish (surf, cr, sc, NULL, W, H, png_path, error);
 }
 
 /* ---- the lane chart ------------------------------------------------------- */
@@ -755,11 +754,7 @@ sf_study_chart_lane (const SfScenario *sc, guint block, guint lane, guint class_
       lb.y += 19;
     }
 
-  study_footer (cr, sc, NULL, W, H);
-  cairo_destroy (cr);
-  gboolean ok = page_write (surf, png_path, error);
-  cairo_surface_destroy (surf);
-  return ok;
+  return study_page_finish (surf, cr, sc, NULL, W, H, png_path, error);
 }
 
 /* ---- the compare chart: gains along the strip ---------------------------------- */
@@ -880,11 +875,7 @@ sf_study_chart_compare (const SfScenario *sc, const SfCompareResult *rows, guint
                                        "out four times by one machine.", NULL };
   legend_notes (cr, &lg, notes);
 
-  study_footer (cr, sc, "block studies", W, H);
-  cairo_destroy (cr);
-  gboolean ok = page_write (surf, png_path, error);
-  cairo_surface_destroy (surf);
-  return ok;
+  return study_page_finish (surf, cr, sc, "block studies", W, H, png_path, error);
 }
 
 /* ---- the hand-over chart: where dozing should stop ------------------------------ */
@@ -1060,9 +1051,5 @@ sf_study_chart_handover (const SfScenario *sc, guint block, guint lane, guint cl
                                        "(the plan's cut).", NULL };
   legend_notes (cr, &lg, notes);
 
-  study_footer (cr, sc, "hand-over study", W, H);
-  cairo_destroy (cr);
-  gboolean ok = page_write (surf, png_path, error);
-  cairo_surface_destroy (surf);
-  return ok;
+  return study_page_finish (surf, cr, sc, "hand-over study", W, H, png_path, error);
 }

@@ -63,6 +63,22 @@ parse_verb (GOptionContext *ctx, const char *verb, int *argc, char ***argv, int 
   return TRUE;
 }
 
+/* The end of a study verb after its table: the chart's outcome when one was
+ * asked for (drawn, or the reason and exit 1), then the caution. */
+static int
+study_end (const char *verb, const char *chart, gboolean drawn, const GError *err)
+{
+  if (chart && !drawn)
+    {
+      g_printerr ("stripfleet %s: %s\n", verb, err->message);
+      return SF_EXIT_RUNTIME;
+    }
+  if (chart)
+    printf ("\nchart written to %s\n", chart);
+  printf ("\n%s", CAUTION);
+  return SF_EXIT_OK;
+}
+
 static SfScenario *
 load_or_report (const char *path, int *rc)
 {
@@ -210,17 +226,8 @@ verb_plan (int argc, char **argv)
     }
   printf ("%5s %-9s %8s %10.1f %10.1f %10s %10.1f\n", "all", "", "", tc, tb, "",
           tb > 0 ? wd / tb : 0.0);
-  if (chart)
-    {
-      if (!sf_study_chart_plan (sc, (guint) opt_block, &o, chart, &err))
-        {
-          g_printerr ("stripfleet plan: %s\n", err->message);
-          return SF_EXIT_RUNTIME;
-        }
-      printf ("\nchart written to %s\n", chart);
-    }
-  printf ("\n%s", CAUTION);
-  return SF_EXIT_OK;
+  gboolean drawn = chart && sf_study_chart_plan (sc, (guint) opt_block, &o, chart, &err);
+  return study_end ("plan", chart, drawn, err);
 }
 
 /* First class with the given blade type, or -1. */
@@ -319,18 +326,9 @@ verb_lane (int argc, char **argv)
   printf ("Block %d, lane %d of '%s', one %s dozer\n\n", opt_block, opt_lane,
           sf_scenario_get_name (sc), sf_scenario_get_class_name (sc, (guint) k));
   print_lane (res, &t);
-  if (chart)
-    {
-      if (!sf_study_chart_lane (sc, (guint) opt_block, (guint) opt_lane, (guint) k, &o, chart,
-                                &err))
-        {
-          g_printerr ("stripfleet lane: %s\n", err->message);
-          return SF_EXIT_RUNTIME;
-        }
-      printf ("\nchart written to %s\n", chart);
-    }
-  printf ("\n%s", CAUTION);
-  return SF_EXIT_OK;
+  gboolean drawn = chart && sf_study_chart_lane (sc, (guint) opt_block, (guint) opt_lane,
+                                                (guint) k, &o, chart, &err);
+  return study_end ("lane", chart, drawn, err);
 }
 
 static int
@@ -460,19 +458,11 @@ verb_compare (int argc, char **argv)
               "%%, common practice, no source)\n",
               name_a, name_b, b_min, b_max, b_sum / rows->len);
     }
-  if (chart)
-    {
-      g_autoptr (GError) err = NULL;
-      if (!sf_study_chart_compare (sc, (const SfCompareResult *) (void *) rows->data, rows->len,
-                                   (guint) ks, (guint) ka, (guint) kb, chart, &err))
-        {
-          g_printerr ("stripfleet compare: %s\n", err->message);
-          return SF_EXIT_RUNTIME;
-        }
-      printf ("\nchart written to %s\n", chart);
-    }
-  printf ("\n%s", CAUTION);
-  return SF_EXIT_OK;
+  g_autoptr (GError) err = NULL;
+  gboolean drawn = chart && sf_study_chart_compare (sc, (const SfCompareResult *) (void *) rows->data,
+                                                   rows->len, (guint) ks, (guint) ka, (guint) kb,
+                                                   chart, &err);
+  return study_end ("compare", chart, drawn, err);
 }
 
 /* The hand-over study on every block: one line each, and the strip's totals. */
@@ -656,18 +646,11 @@ verb_handover (int argc, char **argv)
   printf ("  (the rule: incremental analysis of the %u choices, engineering economy; common "
           "practice, no source)\n",
           t.n_worked + 1);
-  if (chart)
-    {
-      if (!sf_study_chart_handover (sc, (guint) opt_block, (guint) opt_lane, (guint) k,
-                                    (const SfHandoverSlice *) (void *) rows->data, &t, chart, &err))
-        {
-          g_printerr ("stripfleet handover: %s\n", err->message);
-          return SF_EXIT_RUNTIME;
-        }
-      printf ("\nchart written to %s\n", chart);
-    }
-  printf ("\n%s", CAUTION);
-  return SF_EXIT_OK;
+  gboolean drawn = chart && sf_study_chart_handover (sc, (guint) opt_block, (guint) opt_lane,
+                                                    (guint) k,
+                                                    (const SfHandoverSlice *) (void *) rows->data,
+                                                    &t, chart, &err);
+  return study_end ("handover", chart, drawn, err);
 }
 
 static void
